@@ -1,0 +1,319 @@
+/**
+ * From a crest line on the DEM to what the fill needs: bed and crest
+ * elevations, where the water starts, and which side is upstream.
+ *
+ * Rules, in order:
+ * 1. The crest must lie on valid DEM cells: any NoData crest cell skips the
+ *    dam (`crest-over-nodata`), fewer than 2 crest cells skips it
+ *    (`crest-too-short`), a point geometry skips it (`crest-needs-line`).
+ * 2. The bed cell is the crest's lowest DEM cell (the channel at the dam;
+ *    first along the line on ties); the bed elevation is its elevation.
+ * 3. The upstream side is the dam's `upstream` property when set. Otherwise
+ *    the lowest ground within `probeM` of the bed cell along the crest's
+ *    local normal is compared on the two sides: the higher side is upstream
+ *    (the stream falls through the dam). A difference under
+ *    `upstreamToleranceM` is flagged `upstream-ambiguous`.
+ * 4. DEM-visible dams: when the bed cell stands at least `demVisibleMinM`
+ *    above the lowest ground within `probeM` downstream, the dam shows in
+ *    the DEM; the bed becomes that downstream toe.
+ * 5. Crest elevation: bed + measured height ('measured'); else for a
+ *    DEM-visible dam the crest's lowest DEM point ('dem'); else bed +
+ *    `defaultHeightM` ('default').
+ * 6. Breached dams store water only up to the breach: a measured height is
+ *    the breach invert above the bed ('measured'); without one the dam holds
+ *    no water (`holdsWater` false, water level = bed, heightSource 'breach').
+ * 7. Heights (measured or from the DEM): ≤ 0 or not finite skips
+ *    (`height-invalid`; 0 is allowed for a breached dam and means no
+ *    storage), above `maxHeightM` skips (`height-implausible`), above
+ *    `typicalMaxHeightM` warns (`height-high`).
+ */
+import type { Grid } from '../grid/grid.js';
+import { colToX, rowToY } from '../grid/transform.js';
+import type { Warning } from '../errors.js';
+import type { DamInput } from '../inventory.js';
+import type { PondParams } from './params.js';
+import { LEFT, RIGHT, crestSegments, nearestSegment, segmentDirection, sideOf, type CrestSegments } from './crest-side.js';
+
+/** Where a crest elevation came from. */
+export type HeightSource = 'measured' | 'dem' | 'default' | 'breach';
+
+/** Everything the fill needs about one dam, in grid cells and metres. */
+export interface CrestSetup {
+  damId: string;
+  /** Crest cells (flat indices), walls for this dam's fill. */
+  crestCells: Int32Array;
+  /** Non-crest cells 8-adjacent to the crest on its downstream side; water reaching one has gone around the crest. */
+  downstreamCells: Int32Array;
+  /** Lowest crest cell (flat index): where the channel crosses the dam. */
+  bedCell: number;
+  /** Bed elevation, m: the bed cell's elevation, or the downstream toe for a DEM-visible dam. */
+  bedElevM: number;
+  /** Lowest DEM elevation along the crest, m. */
+  crestLowM: number;
+  /** Elevation of the crest top (or breach invert), m. */
+  crestElevM: number;
+  /** crestElevM − bedElevM, m. */
+  heightM: number;
+  heightSource: HeightSource;
+  /** False for a breached dam without a breach height: no pond. */
+  holdsWater: boolean;
+  /** True when the dam stands out in the DEM (rule 4). */
+  demVisible: boolean;
+  /** Non-crest cells next to the bed cell on the upstream side: the flood starts there. */
+  seedCells: Int32Array;
+  upstreamSide: 'left' | 'right';
+  upstreamSource: 'property' | 'terrain';
+  /** Lowest ground within the probe on the upstream and downstream sides, m (NaN when none). */
+  probeUpM: number;
+  probeDownM: number;
+  warnings: Warning[];
+}
+
+/** Sets up one dam for filling, or says why it is skipped. */
+export function setupCrest(
+  grid: Grid,
+  dam: DamInput,
+  crestCells: Int32Array,
+  params: PondParams,
+): CrestSetup | { skip: Warning } {
+  const skip = (code: string, message: string): { skip: Warning } => ({
+    skip: { code, message: `dam ${dam.id}: ${message}`, damId: dam.id },
+  });
+  if (dam.geometry.kind !== 'line') {
+    return skip('crest-needs-line', 'the crest is a point; draw it as a line across the channel');
+  }
+  const { width, z } = grid;
+  let nodata = 0;
+  let bedCell = -1;
+  let crestLowM = Infinity;
+  for (let k = 0; k < crestCells.length; k++) {
+    const i = crestCells[k]!;
+    const zi = z[i]!;
+    if (Number.isNaN(zi)) nodata++;
+    else if (zi < crestLowM) {
+      crestLowM = zi;
+      bedCell = i;
+    }
+  }
+  if (nodata > 0) {
+    return skip(
+      'crest-over-nodata',
+      `${nodata} of ${crestCells.length} crest cells are NoData in the DEM; move the crest onto valid ground or fill the DEM gap`,
+    );
+  }
+  if (crestCells.length < 2) {
+    return skip(
+      'crest-too-short',
+      `the crest covers ${crestCells.length} DEM cell(s); it needs at least 2 on the grid (check its CRS and extent)`,
+    );
+  }
+
+  const segs = crestSegments(dam.geometry.lines);
+  const warnings: Warning[] = [];
+  const warn = (code: string, message: string): void => {
+    warnings.push({ code, message: `dam ${dam.id}: ${message}`, damId: dam.id });
+  };
+  const bedCol = bedCell % width;
+  const bedRow = (bedCell - bedCol) / width;
+  const probe = probeSides(grid, segs, crestCells, bedCol, bedRow, params.probeM);
+
+  // Rule 3: upstream side.
+  let upstreamSide: 'left' | 'right';
+  let upstreamSource: 'property' | 'terrain';
+  const terrainSide = Number.isNaN(probe.leftM) || Number.isNaN(probe.rightM) ? null : probe.leftM > probe.rightM ? 'left' : 'right';
+  const sideGapM = Math.abs(probe.leftM - probe.rightM);
+  if (dam.upstream !== null) {
+    upstreamSide = dam.upstream;
+    upstreamSource = 'property';
+    if (terrainSide !== null && terrainSide !== upstreamSide && sideGapM >= params.upstreamToleranceM) {
+      warn(
+        'upstream-disagrees',
+        `upstream is given as ${upstreamSide} but the ground is ${sideGapM.toFixed(2)} m higher on the ${terrainSide}; check the line's direction or the upstream property`,
+      );
+    }
+  } else if (terrainSide === null) {
+    return skip(
+      'upstream-unknown',
+      'no valid ground on one side of the crest to tell upstream from downstream; set the upstream property (left or right of the line as drawn)',
+    );
+  } else {
+    upstreamSide = terrainSide;
+    upstreamSource = 'terrain';
+    if (sideGapM < params.upstreamToleranceM) {
+      warn(
+        'upstream-ambiguous',
+        `the ground on the two sides of the crest differs by only ${sideGapM.toFixed(3)} m; upstream taken as ${upstreamSide}, set the upstream property to be sure`,
+      );
+    }
+  }
+  const upCode = upstreamSide === 'left' ? LEFT : RIGHT;
+  const probeUpM = upCode === LEFT ? probe.leftM : probe.rightM;
+  const probeDownM = upCode === LEFT ? probe.rightM : probe.leftM;
+
+  // Rule 4: DEM-visible dam.
+  const demVisible = !Number.isNaN(probeDownM) && crestLowM - probeDownM >= params.demVisibleMinM;
+  const bedElevM = demVisible ? probeDownM : crestLowM;
+
+  // Rules 5–7: crest elevation.
+  const breached = dam.status === 'breached';
+  let heightSource: HeightSource;
+  let heightM: number;
+  if (dam.heightM !== null) {
+    heightM = dam.heightM;
+    heightSource = 'measured';
+  } else if (breached) {
+    heightM = 0;
+    heightSource = 'breach';
+  } else if (demVisible) {
+    heightM = crestLowM - bedElevM;
+    heightSource = 'dem';
+  } else {
+    heightM = params.defaultHeightM;
+    heightSource = 'default';
+  }
+  const what = heightSource === 'dem' ? 'height seen in the DEM' : 'height_m';
+  if (!Number.isFinite(heightM) || heightM < 0 || (heightM === 0 && !breached)) {
+    return skip('height-invalid', `${what} is ${heightM}; it must be a positive number of metres`);
+  }
+  if (heightM > params.maxHeightM) {
+    return skip(
+      'height-implausible',
+      `${what} is ${heightM.toFixed(2)} m; beaver dams rarely exceed ${params.typicalMaxHeightM} m and about ${params.maxHeightM} m at most: check units (feet?) or the crest position`,
+    );
+  }
+  if (heightM > params.typicalMaxHeightM) {
+    warn('height-high', `${what} is ${heightM.toFixed(2)} m, above the usual ${params.typicalMaxHeightM} m for beaver dams; kept`);
+  }
+  const holdsWater = heightM > 0;
+  if (breached && !holdsWater) {
+    warn('breached-no-storage', 'breached with no breach height above the bed: counted as holding no water');
+  }
+
+  const seedCells = findSeeds(grid, segs, crestCells, bedCol, bedRow, upCode, probe.firstCell[upCode === LEFT ? 0 : 1]!);
+  if (seedCells.length === 0 && holdsWater) {
+    return skip('no-upstream-cell', 'no valid DEM cell next to the crest on its upstream side; extend the DEM or move the crest');
+  }
+  return {
+    damId: dam.id,
+    crestCells,
+    downstreamCells: sideCells(grid, segs, crestCells, -upCode),
+    bedCell,
+    bedElevM,
+    crestLowM,
+    crestElevM: bedElevM + heightM,
+    heightM,
+    heightSource,
+    holdsWater,
+    demVisible,
+    seedCells,
+    upstreamSide,
+    upstreamSource,
+    probeUpM,
+    probeDownM,
+    warnings,
+  };
+}
+
+/** Lowest ground on each side of the bed cell along the crest's local normal, and the first cell probed on each side. */
+interface Probe {
+  leftM: number;
+  rightM: number;
+  /** First valid non-crest cell met on the left and on the right, or -1. */
+  firstCell: Int32Array;
+}
+
+function probeSides(
+  grid: Grid,
+  segs: CrestSegments,
+  crestCells: Int32Array,
+  bedCol: number,
+  bedRow: number,
+  probeM: number,
+): Probe {
+  const { width, height, transform: t, z } = grid;
+  const crest = new Set<number>(crestCells);
+  const cx = colToX(t, bedCol + 0.5);
+  const cy = rowToY(t, bedRow + 0.5);
+  const dir = new Float64Array(2);
+  const k = nearestSegment(segs, cx, cy);
+  const result: Probe = { leftM: NaN, rightM: NaN, firstCell: new Int32Array([-1, -1]) };
+  if (k < 0) return result;
+  segmentDirection(segs, k, dir);
+  // Left normal in map units, then in pixels per metre of ground.
+  const nc = -dir[1]! / t.dx;
+  const nr = dir[0]! / t.dy;
+  const cellW = grid.cellWidthM[bedRow]!;
+  const cellH = grid.cellHeightM;
+  const metres = Math.hypot(nc * cellW, nr * cellH);
+  const uc = nc / metres;
+  const ur = nr / metres;
+  const stepM = 0.5 * Math.min(cellW, cellH);
+  const reachM = Math.max(probeM, 1.5 * Math.max(cellW, cellH));
+  for (let side = 0; side < 2; side++) {
+    const sign = side === 0 ? 1 : -1;
+    let low = NaN;
+    for (let s = stepM; s <= reachM + 1e-9; s += stepM) {
+      const col = Math.floor(bedCol + 0.5 + sign * s * uc);
+      const row = Math.floor(bedRow + 0.5 + sign * s * ur);
+      if (col < 0 || col >= width || row < 0 || row >= height) break;
+      const i = row * width + col;
+      const zi = z[i]!;
+      if (crest.has(i) || Number.isNaN(zi)) continue;
+      if (result.firstCell[side] === -1) result.firstCell[side] = i;
+      if (!(zi >= low)) low = zi;
+    }
+    if (side === 0) result.leftM = low;
+    else result.rightM = low;
+  }
+  return result;
+}
+
+/** Valid non-crest cells 8-adjacent to the bed cell on the upstream side; falls back to the first probed upstream cell. */
+function findSeeds(
+  grid: Grid,
+  segs: CrestSegments,
+  crestCells: Int32Array,
+  bedCol: number,
+  bedRow: number,
+  upCode: number,
+  fallbackCell: number,
+): Int32Array {
+  const { width, height, transform: t, z } = grid;
+  const crest = new Set<number>(crestCells);
+  const seeds: number[] = [];
+  for (let dr = -1; dr <= 1; dr++) {
+    for (let dc = -1; dc <= 1; dc++) {
+      const col = bedCol + dc;
+      const row = bedRow + dr;
+      if ((dc === 0 && dr === 0) || col < 0 || col >= width || row < 0 || row >= height) continue;
+      const i = row * width + col;
+      if (crest.has(i) || Number.isNaN(z[i]!)) continue;
+      if (sideOf(segs, colToX(t, col + 0.5), rowToY(t, row + 0.5)) === upCode) seeds.push(i);
+    }
+  }
+  if (seeds.length === 0 && fallbackCell >= 0) seeds.push(fallbackCell);
+  return Int32Array.from(seeds);
+}
+
+/** Valid non-crest cells 8-adjacent to any crest cell and on the given side of the line. */
+function sideCells(grid: Grid, segs: CrestSegments, crestCells: Int32Array, sideCode: number): Int32Array {
+  const { width, height, transform: t, z } = grid;
+  const crest = new Set<number>(crestCells);
+  const found = new Set<number>();
+  for (let k = 0; k < crestCells.length; k++) {
+    const c = crestCells[k]!;
+    const col0 = c % width;
+    const row0 = (c - col0) / width;
+    for (let dr = -1; dr <= 1; dr++) {
+      for (let dc = -1; dc <= 1; dc++) {
+        const col = col0 + dc;
+        const row = row0 + dr;
+        if (col < 0 || col >= width || row < 0 || row >= height) continue;
+        const i = row * width + col;
+        if (crest.has(i) || found.has(i) || Number.isNaN(z[i]!)) continue;
+        if (sideOf(segs, colToX(t, col + 0.5), rowToY(t, row + 0.5)) === sideCode) found.add(i);
+      }
+    }
+  }
+  return Int32Array.from(found);
+}
