@@ -1,0 +1,252 @@
+/**
+ * The fill behind one crest: a priority-flood (Barnes, Lehman & Mulla 2014,
+ * "Priority-flood: an optimal depression-filling and watershed-labeling
+ * algorithm", Computers & Geosciences 62) from the seed cells upstream of
+ * the bed, 8-neighbour, with the crest cells as a wall.
+ *
+ * Each cell comes out of the queue with its join level: max(its elevation,
+ * the join level of the cell it was reached from), the lowest water level at
+ * which it joins the pond. Cells come out sorted by join level, so running
+ * sums of cell area and area × elevation give the pond at any level by
+ * binary search (see stage-storage.ts). A cell belongs to the pond at level
+ * h when its join level is below h; every pond cell then has depth > 0.
+ *
+ * Escape: the first popped cell that
+ * - is one of the crest's downstream cells (non-crest cells 8-adjacent to
+ *   the crest on its downstream side: the water went around a crest end),
+ *   → 'spill';
+ * - lies on the edge of the reach box (or grid) → 'edge';
+ * - is 8-adjacent to NoData → 'nodata' (a pond reaching a DEM gap is
+ *   flagged, never silently capped or counted)
+ * sets the escape level to its join level and stops the flood; so does a
+ * join level above `maxLevelM`. Water level = min(crest, escape level).
+ */
+import type { Grid } from '../grid/grid.js';
+import { MinHeap } from '../grid/priority-queue.js';
+import type { CrestSetup } from './crest.js';
+
+/** What set the water level: the crest top, or water escaping below it (spill around the crest, reach edge, NoData), or a breached dam holding nothing. */
+export type PondLimit = 'crest' | 'spill' | 'edge' | 'nodata' | 'breach';
+
+/** How water left the pond region before the crest was reached. */
+export type EscapeKind = 'spill' | 'edge' | 'nodata';
+
+/** Cells [col0, col1) × [row0, row1) of the grid the flood may enter. */
+export interface ReachBox {
+  col0: number;
+  row0: number;
+  col1: number;
+  row1: number;
+}
+
+/** The result of one flood: the whole stage–area–storage relation of a dam up to `topLevelM`. */
+export interface PondFill {
+  /** Flat indices of flooded cells, by non-decreasing join level. */
+  order: Int32Array;
+  /** Join level of each entry of `order`, m. */
+  joinM: Float64Array;
+  /** cumAreaM2[k] = Σ cell area of order[0..k], m². */
+  cumAreaM2: Float64Array;
+  /** cumAreaZ[k] = Σ cell area × (z − zRefM) of order[0..k], m³ (relative to zRefM for precision). */
+  cumAreaZ: Float64Array;
+  /** Reference elevation of cumAreaZ, m (the bed elevation). */
+  zRefM: number;
+  /** min(crest elevation, escape level), m; the bed for a breached dam holding nothing. */
+  waterLevelM: number;
+  limitedBy: PondLimit;
+  /** How water escaped, or null when it did not below `topLevelM`. */
+  escapeKind: EscapeKind | null;
+  /** Join level of the escape cell, m; Infinity when the flood stopped first. */
+  escapeLevelM: number;
+  /** Flat index of the escape cell, or -1. */
+  escapeCell: number;
+  /** Highest level (m) the fill answers for: min(maxLevelM, escapeLevelM). */
+  topLevelM: number;
+  /** Crest cells and crest elevation (m) of the dam, for drowned-dam checks. */
+  crestCells: Int32Array;
+  crestElevM: number;
+  /** Cells taken off the queue (the work done). */
+  visitedCount: number;
+}
+
+/** Reusable buffers for `fillBehindCrest`: size them once per grid (window) and pass them to every dam. */
+export interface FillScratch {
+  /** Number of grid cells the stamps cover. */
+  readonly cellCount: number;
+  /** Current stamp; a cell is marked for this flood when its entry equals it (no clearing per dam). */
+  stamp: number;
+  readonly visited: Int32Array;
+  readonly downstream: Int32Array;
+  readonly heap: MinHeap;
+  order: Int32Array;
+  joinM: Float64Array;
+  cumAreaM2: Float64Array;
+  cumAreaZ: Float64Array;
+}
+
+/** Scratch buffers for grids of up to `cellCount` cells. */
+export function createFillScratch(cellCount: number): FillScratch {
+  const n = 4096;
+  return {
+    cellCount,
+    stamp: 0,
+    visited: new Int32Array(cellCount),
+    downstream: new Int32Array(cellCount),
+    heap: new MinHeap(n),
+    order: new Int32Array(n),
+    joinM: new Float64Array(n),
+    cumAreaM2: new Float64Array(n),
+    cumAreaZ: new Float64Array(n),
+  };
+}
+
+/** Options of `fillBehindCrest`. */
+export interface FillOptions {
+  /** Flood up to this level (m) so later draws can raise the crest; never below the crest elevation (the default). */
+  maxLevelM?: number;
+  /** Cells the flood may enter (default: the whole grid); its edge counts as an escape. */
+  reachBox?: ReachBox;
+}
+
+/** Floods behind one crest (see the file comment). */
+export function fillBehindCrest(grid: Grid, setup: CrestSetup, options: FillOptions = {}, scratch?: FillScratch): PondFill {
+  const { width, height, z, cellAreaM2 } = grid;
+  const crestElevM = setup.crestElevM;
+  if (!setup.holdsWater) return emptyFill(setup);
+  const s = scratch !== undefined && scratch.cellCount >= width * height ? scratch : createFillScratch(width * height);
+  const maxLevelM = Math.max(options.maxLevelM ?? crestElevM, crestElevM);
+  const box = options.reachBox;
+  const col0 = Math.max(0, box?.col0 ?? 0);
+  const row0 = Math.max(0, box?.row0 ?? 0);
+  const lastCol = Math.min(width, box?.col1 ?? width) - 1;
+  const lastRow = Math.min(height, box?.row1 ?? height) - 1;
+
+  const stamp = nextStamp(s);
+  const visited = s.visited;
+  const downstream = s.downstream;
+  for (let k = 0; k < setup.crestCells.length; k++) visited[setup.crestCells[k]!] = stamp;
+  for (let k = 0; k < setup.downstreamCells.length; k++) downstream[setup.downstreamCells[k]!] = stamp;
+  const heap = s.heap;
+  heap.clear();
+  for (let k = 0; k < setup.seedCells.length; k++) {
+    const i = setup.seedCells[k]!;
+    const col = i % width;
+    const row = (i - col) / width;
+    if (col < col0 || col > lastCol || row < row0 || row > lastRow || visited[i] === stamp) continue;
+    visited[i] = stamp;
+    heap.push(i, z[i]!);
+  }
+  if (heap.size === 0) throw new Error(`fill of dam ${setup.damId}: the reach box holds none of its seed cells`);
+
+  const offsets = new Int32Array([-width - 1, -width, -width + 1, -1, 1, width - 1, width, width + 1]);
+  const zRefM = setup.bedElevM;
+  let count = 0;
+  let popped = 0;
+  let sumA = 0;
+  let sumAZ = 0;
+  let escapeLevelM = Infinity;
+  let escapeCell = -1;
+  let escapeKind: EscapeKind | null = null;
+  while (heap.size > 0) {
+    const i = heap.pop();
+    const level = heap.lastPriority;
+    if (level > maxLevelM) break;
+    popped++;
+    const col = i % width;
+    const row = (i - col) / width;
+    if (downstream[i] === stamp) escapeKind = 'spill';
+    else if (col === col0 || col === lastCol || row === row0 || row === lastRow) escapeKind = 'edge';
+    else {
+      // Interior of the box: all 8 neighbours exist. Push them, watching for NoData.
+      for (let k = 0; k < 8; k++) {
+        const j = i + offsets[k]!;
+        const zj = z[j]!;
+        if (zj !== zj) {
+          escapeKind = 'nodata';
+          break;
+        }
+        if (visited[j] === stamp) continue;
+        visited[j] = stamp;
+        heap.push(j, zj > level ? zj : level);
+      }
+    }
+    if (escapeKind !== null) {
+      escapeLevelM = level;
+      escapeCell = i;
+      break;
+    }
+    if (count === s.order.length) growOutputs(s);
+    const a = cellAreaM2[row]!;
+    sumA += a;
+    sumAZ += a * (z[i]! - zRefM);
+    s.order[count] = i;
+    s.joinM[count] = level;
+    s.cumAreaM2[count] = sumA;
+    s.cumAreaZ[count] = sumAZ;
+    count++;
+  }
+
+  const limited = escapeKind !== null && escapeLevelM < crestElevM;
+  return {
+    order: s.order.slice(0, count),
+    joinM: s.joinM.slice(0, count),
+    cumAreaM2: s.cumAreaM2.slice(0, count),
+    cumAreaZ: s.cumAreaZ.slice(0, count),
+    zRefM,
+    waterLevelM: limited ? escapeLevelM : crestElevM,
+    limitedBy: limited && escapeKind !== null ? escapeKind : 'crest',
+    escapeKind,
+    escapeLevelM,
+    escapeCell,
+    topLevelM: Math.min(maxLevelM, escapeLevelM),
+    crestCells: setup.crestCells,
+    crestElevM,
+    visitedCount: popped,
+  };
+}
+
+/** The fill of a dam that holds no water: empty, water level at the bed. */
+function emptyFill(setup: CrestSetup): PondFill {
+  return {
+    order: new Int32Array(0),
+    joinM: new Float64Array(0),
+    cumAreaM2: new Float64Array(0),
+    cumAreaZ: new Float64Array(0),
+    zRefM: setup.bedElevM,
+    waterLevelM: setup.bedElevM,
+    limitedBy: 'breach',
+    escapeKind: null,
+    escapeLevelM: Infinity,
+    escapeCell: -1,
+    topLevelM: setup.bedElevM,
+    crestCells: setup.crestCells,
+    crestElevM: setup.crestElevM,
+    visitedCount: 0,
+  };
+}
+
+function nextStamp(s: FillScratch): number {
+  if (s.stamp >= 0x7ffffffe) {
+    s.visited.fill(0);
+    s.downstream.fill(0);
+    s.stamp = 0;
+  }
+  s.stamp += 1;
+  return s.stamp;
+}
+
+function growOutputs(s: FillScratch): void {
+  const n = s.order.length * 2;
+  const order = new Int32Array(n);
+  order.set(s.order);
+  const joinM = new Float64Array(n);
+  joinM.set(s.joinM);
+  const cumAreaM2 = new Float64Array(n);
+  cumAreaM2.set(s.cumAreaM2);
+  const cumAreaZ = new Float64Array(n);
+  cumAreaZ.set(s.cumAreaZ);
+  s.order = order;
+  s.joinM = joinM;
+  s.cumAreaM2 = cumAreaM2;
+  s.cumAreaZ = cumAreaZ;
+}

@@ -1,0 +1,92 @@
+/**
+ * The pond at any water level from one fill, and the stage–area–storage
+ * curve.
+ *
+ * With the n(h) flooded cells of join level below h (binary search in the
+ * fill order), area(h) = Σa and volume(h) = h·Σa − Σa·z, the two sums read
+ * from the fill's running totals: O(log n) per level, exact up to rounding.
+ */
+import type { Grid } from '../grid/grid.js';
+import type { PondFill } from './fill.js';
+
+/** Pond size at one water level. */
+export interface PondSize {
+  /** Flooded cells (depth > 0). */
+  cellCount: number;
+  /** Water-surface area, m². */
+  areaM2: number;
+  /** Stored water, m³. */
+  volumeM3: number;
+}
+
+/** Number of fill entries whose join level is below `levelM`. */
+export function floodedCount(fill: PondFill, levelM: number): number {
+  const join = fill.joinM;
+  let lo = 0;
+  let hi = join.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (join[mid]! < levelM) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+/**
+ * The pond at water level `levelM` (m). Levels above the fill's `topLevelM`
+ * are taken at `topLevelM` (the water would escape higher up).
+ */
+export function pondAt(fill: PondFill, levelM: number): PondSize {
+  const h = Math.min(levelM, fill.topLevelM);
+  const n = floodedCount(fill, h);
+  if (n === 0) return { cellCount: 0, areaM2: 0, volumeM3: 0 };
+  const areaM2 = fill.cumAreaM2[n - 1]!;
+  const volumeM3 = (h - fill.zRefM) * areaM2 - fill.cumAreaZ[n - 1]!;
+  return { cellCount: n, areaM2, volumeM3: volumeM3 > 0 ? volumeM3 : 0 };
+}
+
+/**
+ * Stage–area–storage rows [level_m, area_m2, volume_m3] from the bed to the
+ * fill's water level every `stepM` metres (the params default is 0.1 m);
+ * the last row is exactly at the water level. Levels are bed + k·step, not
+ * accumulated, so they carry no drift. Area and volume never decrease.
+ */
+export function stageStorage(fill: PondFill, bedElevM: number, stepM: number): [number, number, number][] {
+  if (!(stepM > 0)) throw new Error(`stage step must be positive; got ${stepM}`);
+  const top = fill.waterLevelM;
+  const rows: [number, number, number][] = [];
+  for (let k = 0; ; k++) {
+    const level = bedElevM + k * stepM;
+    if (level >= top - 1e-9 * stepM) break;
+    const p = pondAt(fill, level);
+    rows.push([level, p.areaM2, p.volumeM3]);
+  }
+  const last = pondAt(fill, top);
+  rows.push([top, last.areaM2, last.volumeM3]);
+  return rows;
+}
+
+/** Summary of a pond at one level. */
+export interface PondStats extends PondSize {
+  /** Water level minus the lowest flooded ground, m (0 when dry). */
+  maxDepthM: number;
+  /** volume / area, m (0 when dry). */
+  meanDepthM: number;
+}
+
+/** Area, volume, maximum and mean depth of a fill's pond at `levelM` (default its water level). */
+export function pondStats(grid: Grid, fill: PondFill, levelM: number = fill.waterLevelM): PondStats {
+  const size = pondAt(fill, levelM);
+  const h = Math.min(levelM, fill.topLevelM);
+  const z = grid.z;
+  let lowM = Infinity;
+  for (let k = 0; k < size.cellCount; k++) {
+    const zi = z[fill.order[k]!]!;
+    if (zi < lowM) lowM = zi;
+  }
+  return {
+    ...size,
+    maxDepthM: size.cellCount > 0 ? h - lowM : 0,
+    meanDepthM: size.areaM2 > 0 ? size.volumeM3 / size.areaM2 : 0,
+  };
+}
