@@ -8,8 +8,8 @@ import type { DamStatus } from '../inventory.js';
 
 /** How the crest height was decided. */
 export type HeightSource = 'measured' | 'dem' | 'default' | 'breach';
-/** What set the water level. */
-export type LimitedBy = 'crest' | 'spill' | 'edge' | 'nodata';
+/** What set the water level (`breach`: a breached dam of unknown breach height holds nothing). */
+export type LimitedBy = 'crest' | 'spill' | 'edge' | 'nodata' | 'breach';
 
 /** One row of a stage–area–storage curve: [level_m, area_m2, volume_m3]. */
 export type StageRow = [number, number, number];

@@ -1,0 +1,381 @@
+/**
+ * The estimate pipeline, one direction through it:
+ *
+ *   load (DEM source, inventory in the DEM's CRS)
+ *   → group dams by search box → per group: read one window, build crests,
+ *     fill behind each crest, combine the group's ponds into one water surface
+ *   → per-dam and total figures, depth raster, pond outlines.
+ *
+ * It touches no output files and prints nothing: io/write-run.ts writes what
+ * this returns, and the CLI reports progress through the callback.
+ */
+import type { Warning } from '../errors.js';
+import type { Grid } from '../grid/grid.js';
+import { polygoniseCells } from '../grid/polygonise.js';
+import { rasteriseLines } from '../grid/rasterise-line.js';
+import { cellMetrics } from '../io/crs.js';
+import { colToX, rowToY, xToCol, yToRow } from '../grid/transform.js';
+import type { DamInput } from '../inventory.js';
+import type { DemSource } from '../io/dem.js';
+import { combinePonds, type PondLayer } from '../ponds/combine.js';
+import { setupCrest, type CrestSetup } from '../ponds/crest.js';
+import { createFillScratch, fillBehindCrest, type PondFill } from '../ponds/fill.js';
+import type { PondParams } from '../ponds/params.js';
+import { crestFromPoint } from '../ponds/point-crest.js';
+import { pondStats, stageStorage } from '../ponds/stage-storage.js';
+import type { DamResult, Totals } from './result.js';
+import { clipBox, groupBoxes, unionBox, type CellBox } from './windows.js';
+
+/** Run-level parameters beyond the pond engine's own. */
+export interface EstimateParams {
+  pond: PondParams;
+  /** Largest distance a pond may reach from its crest, metres; bounds each dam's search box. */
+  maxReachM: number;
+  /** Search radius for the channel around a point dam, metres. */
+  snapRadiusM: number;
+  /** Cap on a crest built from a point, metres. */
+  maxCrestLengthM: number;
+  /** Candidates count in the totals only at or above this confidence (0–1). */
+  minConfidence: number;
+}
+
+/** Progress of the long steps, for the CLI's bar. */
+export type ProgressFn = (event: { stage: 'ponds'; done: number; total: number }) => void;
+
+/** Everything a run found, ready to be written. */
+export interface EstimateResult {
+  dams: DamResult[];
+  totals: Totals;
+  /** Water depth on the output window, m; NaN where dry. */
+  depth: { box: CellBox; data: Float32Array } | null;
+  /**
+   * Outline rings per dam (index into `dams`) in full-DEM pixel-corner
+   * coordinates, exterior first: `attributed` is the water the dam owns in the
+   * combined surface; `standalone` its own pond, given for dams not in the totals.
+   */
+  outlines: { dam: number; kind: 'attributed' | 'standalone'; polygons: [number, number][][][] }[];
+  warnings: Warning[];
+  /** Cells the floods visited, summed over dams (work done). */
+  cellsVisited: number;
+}
+
+interface Working {
+  dam: DamInput;
+  result: DamResult;
+  box: CellBox | null;
+  setup?: CrestSetup;
+  fill?: PondFill;
+}
+
+/** Runs the pond stages for an opened DEM and a read inventory. */
+export async function estimatePonds(
+  dem: DemSource,
+  dams: readonly DamInput[],
+  params: EstimateParams,
+  progress?: ProgressFn,
+): Promise<EstimateResult> {
+  const warnings: Warning[] = [];
+  const cellM = demCellSizeM(dem);
+  const work: Working[] = dams.map((dam) => {
+    const result = emptyResult(dam, params.minConfidence);
+    const box = searchBox(dem, dam, params, cellM);
+    if (!box) skip(result, warnings, {
+      code: 'outside-dem',
+      damId: dam.id,
+      message: `dam ${dam.id}: its geometry lies outside the DEM; check the dams' CRS (--dams-crs) or the DEM tiles given`,
+    });
+    return { dam, result, box };
+  });
+
+  const groups = groupBoxes(work.map((w) => w.box));
+  const outlines: EstimateResult['outlines'] = [];
+  let outBox: CellBox | null = null;
+  for (const g of groups) outBox = outBox ? unionBox(outBox, g.box) : g.box;
+  const depth = outBox ? { box: outBox, data: new Float32Array((outBox.col1 - outBox.col0) * (outBox.row1 - outBox.row0)).fill(NaN) } : null;
+
+  let done = 0;
+  let cellsVisited = 0;
+  for (const group of groups) {
+    const { box } = group;
+    const grid = await dem.readWindow(box.col0, box.row0, box.col1 - box.col0, box.row1 - box.row0);
+    const scratch = createFillScratch(grid.width * grid.height);
+    for (const k of group.members) {
+      const w = work[k]!;
+      floodOne(grid, w, box, params, warnings, scratch);
+      cellsVisited += w.fill?.visitedCount ?? 0;
+      progress?.({ stage: 'ponds', done: ++done, total: dams.length });
+    }
+    combineGroup(grid, group.members.map((k) => work[k]!), box, depth!, outlines, work);
+  }
+
+  const results = work.map((w) => w.result);
+  return { dams: results, totals: totalsOf(results), depth, outlines, warnings, cellsVisited };
+}
+
+/** Builds the crest, fills behind it and records the dam's own pond. */
+function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, warnings: Warning[], scratch: ReturnType<typeof createFillScratch>): void {
+  const { dam, result } = w;
+  let lines: [number, number][][];
+  if (dam.geometry.kind === 'point') {
+    const built = crestFromPoint(grid, dam.geometry.x, dam.geometry.y, {
+      heightM: dam.heightM !== null && dam.heightM > 0 ? dam.heightM : params.pond.defaultHeightM,
+      snapRadiusM: params.snapRadiusM,
+      maxCrestLengthM: params.maxCrestLengthM,
+      damId: dam.id,
+    });
+    if ('skip' in built) return skip(result, warnings, built.skip);
+    for (const wn of built.warnings) note(result, warnings, wn);
+    lines = [built.line];
+  } else {
+    lines = dam.geometry.lines;
+  }
+  const crest = rasteriseLines(grid, lines);
+  if (crest.outside > 0) {
+    note(result, warnings, {
+      code: 'crest-off-dem',
+      damId: dam.id,
+      message: `dam ${dam.id}: ${crest.outside} crest vertices lie off the DEM; the crest is cut at the DEM's edge`,
+    });
+  }
+  const setup = setupCrest(grid, dam, crest.cells, params.pond);
+  if ('skip' in setup) return skip(result, warnings, setup.skip);
+  for (const wn of setup.warnings) note(result, warnings, wn);
+  const own = w.box!;
+  const reachBox = { col0: own.col0 - box.col0, row0: own.row0 - box.row0, col1: own.col1 - box.col0, row1: own.row1 - box.row0 };
+  const fill = fillBehindCrest(grid, setup, { reachBox }, scratch);
+  // The scratch buffers are reused by the next dam: keep copies of this fill's arrays.
+  const kept: PondFill = { ...fill, order: fill.order.slice(), joinM: fill.joinM.slice(), cumAreaM2: fill.cumAreaM2.slice(), cumAreaZ: fill.cumAreaZ.slice() };
+  w.setup = setup;
+  w.fill = kept;
+  const stats = pondStats(grid, kept);
+  Object.assign(result, {
+    estimated: true,
+    crest_elev_m: setup.crestElevM,
+    bed_elev_m: setup.bedElevM,
+    height_m: setup.heightM,
+    height_source: setup.heightSource,
+    upstream_side: setup.upstreamSide,
+    upstream_source: setup.upstreamSource,
+    water_level_m: kept.waterLevelM,
+    limited_by: kept.limitedBy,
+    standalone_area_m2: stats.areaM2,
+    standalone_volume_m3: stats.volumeM3,
+    crest_length_m: crestLengthM(grid, lines),
+    cells_visited: kept.visitedCount,
+    stage_storage: stageStorage(kept, setup.bedElevM, params.pond.stageStepM),
+  } satisfies Partial<DamResult>);
+  if (kept.limitedBy !== 'crest' && kept.limitedBy !== 'breach') {
+    note(result, warnings, limitWarning(dam.id, kept));
+  }
+}
+
+/** Combines the group's ponds that count in the totals and records each dam's share, depth and outline. */
+function combineGroup(grid: Grid, members: Working[], box: CellBox, depth: NonNullable<EstimateResult['depth']>, outlines: EstimateResult['outlines'], all: Working[]): void {
+  const layers: PondLayer[] = [];
+  const owners: Working[] = [];
+  for (const w of members) {
+    if (!w.fill) continue;
+    if (w.result.in_totals) {
+      layers.push({ fill: w.fill, waterLevelM: w.fill.waterLevelM });
+      owners.push(w);
+    } else {
+      const stats = pondStats(grid, w.fill);
+      outlines.push({ dam: all.indexOf(w), kind: 'standalone', polygons: outlineOf(w.fill.order.subarray(0, stats.cellCount), grid, box) });
+    }
+  }
+  if (layers.length === 0) return;
+  const combined = combinePonds(grid, layers);
+  combined.perPond.forEach((share, p) => {
+    const r = owners[p]!.result;
+    r.area_m2 = share.areaM2;
+    r.volume_m3 = share.volumeM3;
+    r.max_depth_m = share.maxDepthM;
+    r.mean_depth_m = share.areaM2 > 0 ? share.volumeM3 / share.areaM2 : 0;
+    r.drowned_by = share.drownedBy >= 0 ? owners[share.drownedBy]!.dam.id : null;
+    if (r.drowned_by) r.warnings.push(`crest under the pond of dam ${r.drowned_by}; its water is counted there`);
+  });
+
+  // Depth into the output window, and the cells each dam owns (bucketed by owner).
+  const { width, height, z } = grid;
+  const outW = depth.box.col1 - depth.box.col0;
+  const counts = new Int32Array(layers.length + 1);
+  for (let row = 0; row < height; row++) {
+    const outRow = (row + box.row0 - depth.box.row0) * outW + (box.col0 - depth.box.col0);
+    for (let col = 0; col < width; col++) {
+      const i = row * width + col;
+      const o = combined.owner[i]!;
+      if (o < 0) continue;
+      depth.data[outRow + col] = combined.levelM[i]! - z[i]!;
+      counts[o + 1]!++;
+    }
+  }
+  for (let p = 0; p < layers.length; p++) counts[p + 1]! += counts[p]!;
+  const cells = new Int32Array(counts[layers.length]!);
+  const next = counts.slice(0, layers.length);
+  for (let i = 0; i < combined.owner.length; i++) {
+    const o = combined.owner[i]!;
+    if (o >= 0) cells[next[o]!++] = i;
+  }
+  for (let p = 0; p < layers.length; p++) {
+    const own = cells.subarray(counts[p]!, counts[p + 1]!);
+    if (own.length > 0) outlines.push({ dam: all.indexOf(owners[p]!), kind: 'attributed', polygons: outlineOf(own, grid, box) });
+  }
+}
+
+/** Outline rings of window cells, shifted to full-DEM pixel coordinates. */
+function outlineOf(cells: Int32Array, grid: Grid, box: CellBox): [number, number][][][] {
+  return polygoniseCells(cells, grid.width).map((polygon) =>
+    polygon.map((ring) => ring.map(([c, r]) => [c + box.col0, r + box.row0] as [number, number])),
+  );
+}
+
+/** The dam's search box in DEM cells: its geometry's extent grown by the maximum reach. */
+function searchBox(dem: DemSource, dam: DamInput, params: EstimateParams, cellM: { x: number; y: number }): CellBox | null {
+  const t = dem.transform;
+  let c0 = Infinity;
+  let c1 = -Infinity;
+  let r0 = Infinity;
+  let r1 = -Infinity;
+  const visit = (x: number, y: number): void => {
+    const c = xToCol(t, x);
+    const r = yToRow(t, y);
+    c0 = Math.min(c0, c);
+    c1 = Math.max(c1, c);
+    r0 = Math.min(r0, r);
+    r1 = Math.max(r1, r);
+  };
+  let growM = params.maxReachM;
+  if (dam.geometry.kind === 'point') {
+    visit(dam.geometry.x, dam.geometry.y);
+    growM += params.maxCrestLengthM / 2 + params.snapRadiusM;
+  } else {
+    for (const line of dam.geometry.lines) for (const [x, y] of line) visit(x, y);
+  }
+  if (!Number.isFinite(c0) || !Number.isFinite(r0)) return null;
+  // The geometry itself must touch the DEM; only then is the box grown.
+  if (!clipBox({ col0: Math.floor(c0), row0: Math.floor(r0), col1: Math.floor(c1) + 1, row1: Math.floor(r1) + 1 }, dem.width, dem.height)) {
+    return null;
+  }
+  const gc = Math.ceil(growM / cellM.x);
+  const gr = Math.ceil(growM / cellM.y);
+  return clipBox(
+    { col0: Math.floor(c0) - gc, row0: Math.floor(r0) - gr, col1: Math.floor(c1) + 1 + gc, row1: Math.floor(r1) + 1 + gr },
+    dem.width,
+    dem.height,
+  );
+}
+
+/** Smallest cell size of the DEM in metres (geographic: over its rows), so reach boxes are never too small. */
+function demCellSizeM(dem: DemSource): { x: number; y: number } {
+  const top = cellMetrics(dem.crs, dem.transform, 0, 1);
+  const bottom = cellMetrics(dem.crs, dem.transform, dem.height - 1, 1);
+  return { x: Math.min(top.cellWidthM[0]!, bottom.cellWidthM[0]!), y: top.cellHeightM };
+}
+
+/** Crest length in metres, measured on the grid's per-row cell sizes. */
+function crestLengthM(grid: Grid, lines: [number, number][][]): number {
+  let total = 0;
+  for (const line of lines) {
+    for (let k = 0; k + 1 < line.length; k++) {
+      const [xa, ya] = line[k]!;
+      const [xb, yb] = line[k + 1]!;
+      const ra = yToRow(grid.transform, ya);
+      const rb = yToRow(grid.transform, yb);
+      const row = Math.min(grid.height - 1, Math.max(0, Math.floor((ra + rb) / 2)));
+      const dxM = (xToCol(grid.transform, xb) - xToCol(grid.transform, xa)) * grid.cellWidthM[row]!;
+      const dyM = (rb - ra) * grid.cellHeightM;
+      total += Math.hypot(dxM, dyM);
+    }
+  }
+  return total;
+}
+
+function limitWarning(id: string, fill: PondFill): Warning {
+  const level = fill.waterLevelM.toFixed(2);
+  switch (fill.limitedBy) {
+    case 'spill':
+      return { code: 'spills-around-crest', damId: id, message: `dam ${id}: water escapes around the end of the crest at ${level} m, below the crest; the crest line may be too short, or the dam does not span the valley` };
+    case 'edge':
+      return { code: 'reaches-edge', damId: id, message: `dam ${id}: the pond reaches the edge of the DEM or of the maximum pond reach at ${level} m; its extent and volume are a lower bound (raise --max-reach or add DEM tiles)` };
+    default:
+      return { code: 'reaches-nodata', damId: id, message: `dam ${id}: the pond reaches NoData cells at ${level} m; its extent and volume are a lower bound` };
+  }
+}
+
+function note(result: DamResult, warnings: Warning[], w: Warning): void {
+  result.warnings.push(stripId(w));
+  warnings.push(w);
+}
+
+function skip(result: DamResult, warnings: Warning[], w: Warning): void {
+  result.estimated = false;
+  result.skip_reason = stripId(w);
+  result.in_totals = false;
+  warnings.push(w);
+}
+
+/** Per-dam messages are stored on the dam's own row, without repeating its id. */
+function stripId(w: Warning): string {
+  return w.damId ? w.message.replace(`dam ${w.damId}: `, '') : w.message;
+}
+
+function emptyResult(dam: DamInput, minConfidence: number): DamResult {
+  const inTotals = dam.status === 'proposed' ? false : dam.status === 'candidate' ? (dam.confidence ?? 1) >= minConfidence : true;
+  return {
+    id: dam.id,
+    status: dam.status,
+    confidence: dam.confidence,
+    year: dam.year,
+    crest_geometry: dam.geometry.kind,
+    in_totals: inTotals,
+    estimated: false,
+    skip_reason: null,
+    crest_elev_m: null,
+    bed_elev_m: null,
+    height_m: null,
+    height_source: null,
+    upstream_side: null,
+    upstream_source: null,
+    water_level_m: null,
+    limited_by: null,
+    area_m2: 0,
+    volume_m3: 0,
+    max_depth_m: 0,
+    mean_depth_m: 0,
+    standalone_area_m2: 0,
+    standalone_volume_m3: 0,
+    drowned_by: null,
+    crest_length_m: null,
+    cells_visited: 0,
+    stage_storage: [],
+    warnings: [],
+    properties: dam.extra,
+  };
+}
+
+/** Totals are the sums of the per-dam rows, in row order, so they agree exactly. */
+function totalsOf(dams: DamResult[]): Totals {
+  let area = 0;
+  let volume = 0;
+  let estimated = 0;
+  let inTotals = 0;
+  for (const d of dams) {
+    if (d.estimated) estimated++;
+    if (d.estimated && d.in_totals) inTotals++;
+    area += d.area_m2;
+    volume += d.volume_m3;
+  }
+  return {
+    dam_count: dams.length,
+    dams_estimated: estimated,
+    dams_skipped: dams.length - estimated,
+    dams_in_totals: inTotals,
+    inundated_area_m2: area,
+    storage_m3: volume,
+  };
+}
+
+/** Map coordinates of a full-DEM pixel-corner position. */
+export function pixelToMap(dem: DemSource, col: number, row: number): [number, number] {
+  return [colToX(dem.transform, col), rowToY(dem.transform, row)];
+}

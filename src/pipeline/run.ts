@@ -1,0 +1,67 @@
+/**
+ * One estimate run end to end: load → ponds → summary → files, written into
+ * a folder that appears only when everything succeeded.
+ */
+import { writeFolderAtomically } from '../io/run-folder.js';
+import { writeRunFiles } from '../io/write-run.js';
+import { DEFAULT_POND_PARAMS } from '../ponds/params.js';
+import { DEFAULT_MAX_CREST_LENGTH_M, DEFAULT_SNAP_RADIUS_M } from '../ponds/point-crest.js';
+import { estimatePonds, type EstimateParams, type EstimateResult, type ProgressFn } from './estimate.js';
+import { loadInputs, type LoadOptions } from './load.js';
+import { buildSummary, type Summary } from './summary.js';
+import { TOOL_VERSION } from './version.js';
+
+/**
+ * Largest distance a pond may reach from its crest (m): 1000 m. Beaver ponds
+ * are mostly tens to a few hundred metres long (common practice); a 1.5 m
+ * dam on a 0.15 % valley floor backs water up 1 km. Ponds that reach it are
+ * flagged `edge`, never silently cut.
+ */
+export const DEFAULT_MAX_REACH_M = 1000;
+/** Candidates count in the totals from this confidence up (a project choice: more likely than not). */
+export const DEFAULT_MIN_CONFIDENCE = 0.5;
+
+/** Run parameters with every default filled in. */
+export function defaultParams(): EstimateParams {
+  return {
+    pond: { ...DEFAULT_POND_PARAMS },
+    maxReachM: DEFAULT_MAX_REACH_M,
+    snapRadiusM: DEFAULT_SNAP_RADIUS_M,
+    maxCrestLengthM: DEFAULT_MAX_CREST_LENGTH_M,
+    minConfidence: DEFAULT_MIN_CONFIDENCE,
+  };
+}
+
+export interface RunOptions extends LoadOptions {
+  outDir: string;
+  params: EstimateParams;
+  progress?: ProgressFn;
+}
+
+/** Runs an estimate and writes its folder; returns what was written. */
+export async function runEstimate(options: RunOptions): Promise<{ summary: Summary; result: EstimateResult }> {
+  const startedAt = new Date();
+  const loaded = await loadInputs(options);
+  try {
+    const result = await estimatePonds(loaded.dem, loaded.dams, options.params, options.progress);
+    const summary = buildSummary({
+      version: TOOL_VERSION,
+      startedAt,
+      finishedAt: new Date(),
+      inputs: loaded.inputs,
+      dem: loaded.demFacts,
+      damsFormat: loaded.damsFormat,
+      damsCrs: loaded.damsSourceCrs,
+      params: options.params,
+      assumptions: loaded.assumptions,
+      result,
+      warnings: [...loaded.warnings, ...result.warnings],
+    });
+    await writeFolderAtomically(options.outDir, (dir) =>
+      writeRunFiles(dir, { summary, result, demTransform: loaded.dem.transform, demCrs: loaded.dem.crs }),
+    );
+    return { summary, result };
+  } finally {
+    await loaded.dem.close();
+  }
+}

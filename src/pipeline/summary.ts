@@ -1,0 +1,82 @@
+/**
+ * summary.json: everything a run found, machine-readable. Field names are
+ * part of pondage's interface; add, never rename.
+ *
+ * Numbers are written at full double precision so that per-dam rows, summed
+ * in row order, equal the totals exactly when read back.
+ */
+import { m2ToAcres, m2ToHectares, m3ToAcreFeet } from '../units.js';
+import type { Warning } from '../errors.js';
+import type { DemDescription } from '../io/dem.js';
+import type { EstimateParams, EstimateResult } from './estimate.js';
+import type { DamResult, InputRecord, Totals } from './result.js';
+import { CAUTIONS } from './cautions.js';
+
+export const TOOL_NAME = 'pondage';
+
+export interface Summary {
+  tool: { name: string; version: string };
+  /** Facts that differ between otherwise identical runs (clock times). */
+  run: { started_at: string; finished_at: string; duration_s: number; cells_visited: number };
+  inputs: InputRecord[];
+  dem: DemDescription;
+  dams_file: { format: string; crs: string };
+  parameters: Record<string, number | string>;
+  assumptions: string[];
+  cautions: string[];
+  totals: Totals & { inundated_area_ha: number; inundated_area_acres: number; storage_acre_ft: number };
+  dams: DamResult[];
+  warnings: { code: string; dam_id: string | null; message: string }[];
+}
+
+/** Builds the summary record of a run. */
+export function buildSummary(args: {
+  version: string;
+  startedAt: Date;
+  finishedAt: Date;
+  inputs: InputRecord[];
+  dem: DemDescription;
+  damsFormat: string;
+  damsCrs: string;
+  params: EstimateParams;
+  assumptions: string[];
+  result: EstimateResult;
+  warnings: Warning[];
+}): Summary {
+  const { result, params } = args;
+  const t = result.totals;
+  return {
+    tool: { name: TOOL_NAME, version: args.version },
+    run: {
+      started_at: args.startedAt.toISOString(),
+      finished_at: args.finishedAt.toISOString(),
+      duration_s: (args.finishedAt.getTime() - args.startedAt.getTime()) / 1000,
+      cells_visited: result.cellsVisited,
+    },
+    inputs: args.inputs,
+    dem: args.dem,
+    dams_file: { format: args.damsFormat, crs: args.damsCrs },
+    parameters: {
+      default_height_m: params.pond.defaultHeightM,
+      typical_max_height_m: params.pond.typicalMaxHeightM,
+      max_height_m: params.pond.maxHeightM,
+      dem_visible_min_m: params.pond.demVisibleMinM,
+      probe_m: params.pond.probeM,
+      stage_step_m: params.pond.stageStepM,
+      max_reach_m: params.maxReachM,
+      snap_radius_m: params.snapRadiusM,
+      max_crest_length_m: params.maxCrestLengthM,
+      min_confidence: params.minConfidence,
+    },
+    assumptions: args.assumptions,
+    cautions: CAUTIONS,
+    totals: {
+      ...t,
+      inundated_area_ha: m2ToHectares(t.inundated_area_m2),
+      inundated_area_acres: m2ToAcres(t.inundated_area_m2),
+      storage_acre_ft: m3ToAcreFeet(t.storage_m3),
+    },
+    dams: result.dams,
+    warnings: args.warnings.map((w) => ({ code: w.code, dam_id: w.damId ?? null, message: w.message })),
+  };
+}
