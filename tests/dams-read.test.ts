@@ -272,9 +272,11 @@ describe('CSV inventories', () => {
     expect(r.dams[2]?.heightM).toBeCloseTo(0.8, 12);
   });
 
-  it('lon/lat columns are always WGS84, even with --dams-crs', () => {
+  it('lon/lat columns are always WGS84, even with --dams-crs (which is reported unused)', () => {
     const c = fixture('lonlat.csv');
     const r = parseDams(c.text, c.file, WITH_CRS);
+    expect(r.warnings.map((w) => w.code)).toEqual(['dams-crs-unused']);
+    expect(r.sourceCrs).toMatch(/WGS84/);
     expect(r.dams[0]?.geometry).toEqual({ kind: 'point', x: -117000, y: 45000 });
     expect(r.dams[0]).toMatchObject({ id: 'll-1', heightM: 1.1, confidence: 0.65 });
     expect(r.dams[1]).toMatchObject({ id: 'll-2', heightM: null, confidence: 1 });
@@ -312,6 +314,10 @@ describe('CSV inventories', () => {
     expect(a.warnings.map((w) => w.code)).toEqual(['csv-geometry-columns']);
     const b = parseDams(text, 'both.csv', WITH_CRS);
     expect(b.dams[0]?.geometry).toEqual({ kind: 'point', x: 500001, y: 4982948 });
+    const w = parseDams('id,wkt,lon,lat\nk,POINT (1 2),-117,45\n', 'wkt-and-lonlat.csv', WITH_CRS);
+    expect(w.dams[0]?.geometry).toEqual({ kind: 'point', x: 2, y: 0 });
+    expect(w.dams[0]?.extra).toEqual({ lon: '-117', lat: '45' });
+    expect(w.warnings.map((x) => x.message)).toEqual(['wkt-and-lonlat.csv: geometry read from column wkt; columns lon, lat kept as properties']);
   });
 
   it('out-of-range lon/lat columns name the row and the fix', () => {
@@ -381,6 +387,13 @@ describe('problems are collected and reported together', () => {
     expect(inputError(() => parseDams('{"type":"FeatureCollection","features":[]}', 'z.geojson', LONLAT))).toMatch(/z\.geojson: the dam inventory has no features/);
     expect(inputError(() => parseDams('{"type":', 'j.geojson', LONLAT))).toMatch(/j\.geojson: 1 problem.*not valid JSON/s);
     expect(inputError(() => parseDams('{"type":"Point","coordinates":[1,2]}', 'g.geojson', LONLAT))).toMatch(/g\.geojson.*a GeoJSON Point; give a FeatureCollection/s);
+  });
+
+  it('drops "upstream" on a point dam, with a warning: there is no drawn line for it to refer to', () => {
+    const fc = { type: 'FeatureCollection', features: [{ type: 'Feature', properties: { id: 'pu', upstream: 'Left' }, geometry: { type: 'Point', coordinates: [0, 0] } }] };
+    const r = parseDams(JSON.stringify(fc), 'pu.geojson', LONLAT);
+    expect(r.dams[0]?.upstream).toBeNull();
+    expect(r.warnings).toEqual([expect.objectContaining({ code: 'upstream-ignored', damId: 'pu' })]);
   });
 
   it('warns about a height property it does not read', () => {

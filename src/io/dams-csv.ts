@@ -121,6 +121,13 @@ export function parseCsvDams(text: string, problems: DamProblems, options: CsvDa
   if (wktCol !== undefined) {
     geometryCols = [wktCol];
     coords = { kind: 'file', columns: `column ${name(wktCol)}` };
+    const others = (['lon', 'lat', 'x', 'y'] as const).map((r) => colOf.get(r)).filter((c) => c !== undefined);
+    if (others.length > 0) {
+      warnings.push({
+        code: 'csv-geometry-columns',
+        message: `${problems.file}: geometry read from column ${name(wktCol)}; columns ${others.map(name).join(', ')} kept as properties`,
+      });
+    }
     read = (fields) => {
       const w = parseWkt(fields[wktCol] ?? '');
       return w.ok ? crestGeometry(w.geometry) : { ok: false, reason: w.reason };
@@ -148,7 +155,7 @@ export function parseCsvDams(text: string, problems: DamProblems, options: CsvDa
       const other = useXy ? lonLat : xy;
       warnings.push({
         code: 'csv-geometry-columns',
-        message: `geometry read from ${columns}; columns ${name(other[0])}/${name(other[1])} kept as properties${useXy ? '' : ' (pass --dams-crs to use them instead)'}`,
+        message: `${problems.file}: geometry read from ${columns}; columns ${name(other[0])}/${name(other[1])} kept as properties${useXy ? '' : ' (pass --dams-crs to use them instead)'}`,
       });
     }
   } else {

@@ -79,7 +79,15 @@ function chooseTransform(
   const lonLat = { toDem: options.lonLatToDem, label: LONLAT_LABEL };
   const damsCrs = options.damsCrs ?? null;
   const declared = raw.declaredCrs;
-  if (raw.coords.kind === 'lonlat') return { ...lonLat, checkLonLat: 'feature' };
+  if (raw.coords.kind === 'lonlat') {
+    if (damsCrs !== null) {
+      warnings.push({
+        code: 'dams-crs-unused',
+        message: `${file}: --dams-crs ${damsCrs.label} is not used; ${raw.coords.columns} are read as WGS84 degrees`,
+      });
+    }
+    return { ...lonLat, checkLonLat: 'feature' };
+  }
   if (raw.coords.kind === 'projected' && damsCrs === null) {
     throw new InputError(
       `${file}: ${raw.coords.columns} hold projected coordinates but no CRS is known for them; pass --dams-crs with their CRS (e.g. --dams-crs EPSG:26911)`,
@@ -174,7 +182,17 @@ export function parseDams(text: string, fileName: string, options: DamReadOption
       problems.add({ ...place, id, property: 'geometry' }, `has coordinates that do not transform from ${crs.label} to the DEM's CRS; check --dams-crs`);
       continue;
     }
-    const { extra, heightM, status, confidence, year, upstream } = fields;
+    const { extra, heightM, status, confidence, year } = fields;
+    let upstream = fields.upstream;
+    if (upstream !== null && geometry.kind === 'point') {
+      const who = id === null ? `feature ${dam.feature}` : `dam ${id}`;
+      warnings.push({
+        code: 'upstream-ignored',
+        message: `${fileName}: ${who} is a point, so "upstream" (a side of a drawn line) does not apply; the flow direction is taken from the terrain`,
+        ...(id === null ? {} : { damId: id }),
+      });
+      upstream = null;
+    }
     built.push({ id, feature: dam.feature, index: dam.feature - 1, geometry, heightM, status, confidence, year, upstream, extra });
   }
 
