@@ -228,6 +228,48 @@ describe('crestFromPoint units and skips', () => {
     expect(lengthMapUnits * usFt).toBeCloseTo(crest.lengthM, 6);
   });
 
+  it('works on a geographic grid through its per-row cell sizes in metres', () => {
+    // Lon/lat cells of 1e-5°, with east–west and north–south metres per degree
+    // given to the grid and used by the analytic surface alike (local plane).
+    const size = 200;
+    const d = 1e-5;
+    const lon0 = -113.5;
+    const lat0 = 46.2;
+    const kx = 77_000; // m per degree of longitude (round local figure, self-consistent here)
+    const ky = 111_000; // m per degree of latitude
+    const m = 4;
+    const clon = lon0 + 100.5 * d;
+    const clat = lat0 - 100.5 * d;
+    const valley = vValley({ cx: 0, cy: 0, flowDeg: 200, slope: 0.01, m });
+    const z = new Float32Array(size * size);
+    for (let r = 0; r < size; r++) {
+      for (let c = 0; c < size; c++) {
+        z[r * size + c] = valley.z((lon0 + (c + 0.5) * d - clon) * kx, (lat0 - (r + 0.5) * d - clat) * ky);
+      }
+    }
+    const grid: Grid = {
+      width: size,
+      height: size,
+      transform: { x0: lon0, y0: lat0, dx: d, dy: -d },
+      z,
+      cellAreaM2: new Float64Array(size).fill(d * kx * d * ky),
+      cellWidthM: new Float64Array(size).fill(d * kx),
+      cellHeightM: d * ky,
+      colOffset: 0,
+      rowOffset: 0,
+    };
+    const crest = ok(crestFromPoint(grid, clon + 2 * d, clat, { heightM: 1.5 }));
+    const bearing = (Math.atan2(crest.flowDirection[0], crest.flowDirection[1]) * 180) / Math.PI;
+    expect(Math.abs(((bearing - 200 + 540) % 360) - 180)).toBeLessThan(2);
+    const [a, b] = crest.line as [[number, number], [number, number]];
+    const lengthM = Math.hypot((b[0] - a[0]) * kx, (b[1] - a[1]) * ky);
+    expect(lengthM).toBeCloseTo(crest.lengthM, 6);
+    const col = crest.channelCell % size;
+    const row = Math.floor(crest.channelCell / size);
+    const delta = Math.abs(valley.across((lon0 + (col + 0.5) * d - clon) * kx, (lat0 - (row + 0.5) * d - clat) * ky));
+    expect(Math.abs(crest.lengthM - (2 * m * 1.5 + 2 * delta))).toBeLessThan(0.25);
+  });
+
   it('skips a point off the grid, naming the dam', () => {
     const grid = gridOf(20, 1, () => 10);
     const r = crestFromPoint(grid, X0 - 5, Y0 - 5, { heightM: 1, damId: 'd-9' });
