@@ -45,7 +45,7 @@ export function polygoniseCells(cells: ArrayLike<number>, width: number): PixelP
   const dc = c0 - 1;
   const dr = r0 - 1;
   return shape.coordinates.map((polygon) =>
-    polygon.map((ring) => ring.map(([x, y]) => [x + dc, y + dr] as [number, number])),
+    polygon.map((ring) => ring.map((point) => [point[0]! + dc, point[1]! + dr] as [number, number])),
   );
 }
 
