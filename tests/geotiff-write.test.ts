@@ -73,7 +73,7 @@ describe('writeGeoTiff', () => {
       expect([image.getTileWidth(), image.getTileHeight()]).toEqual(e.block);
       const compression = image.fileDirectory.getValue('Compression');
       expect(compression === 8 ? 'DEFLATE' : null).toBe(e.compression);
-      const predictor = image.fileDirectory.getValue('Predictor');
+      const predictor: unknown = (image.fileDirectory as unknown as { getValue(name: string): unknown }).getValue('Predictor');
       expect(predictor === undefined || predictor === 1 ? null : String(predictor)).toBe(e.predictor);
     } finally {
       await tiff.close();
