@@ -96,12 +96,3 @@ export function sideOf(s: CrestSegments, x: number, y: number): number {
   const cross = (s.bx[k]! - s.ax[k]!) * (y - s.ay[k]!) - (s.by[k]! - s.ay[k]!) * (x - s.ax[k]!);
   return cross > 0 ? LEFT : cross < 0 ? RIGHT : NEITHER;
 }
-
-/** Unit direction (map units) of segment k, written into `out` as [dx, dy]. */
-export function segmentDirection(s: CrestSegments, k: number, out: Float64Array): void {
-  const dx = s.bx[k]! - s.ax[k]!;
-  const dy = s.by[k]! - s.ay[k]!;
-  const len = Math.hypot(dx, dy);
-  out[0] = dx / len;
-  out[1] = dy / len;
-}

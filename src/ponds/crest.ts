@@ -9,10 +9,11 @@
  * 2. The bed cell is the crest's lowest DEM cell (the channel at the dam;
  *    first along the line on ties); the bed elevation is its elevation.
  * 3. The upstream side is the dam's `upstream` property when set. Otherwise
- *    the lowest ground within `probeM` of the bed cell along the crest's
- *    local normal is compared on the two sides: the higher side is upstream
- *    (the stream falls through the dam). A difference under
- *    `upstreamToleranceM` is flagged `upstream-ambiguous`.
+ *    the lowest ground within `probeM` of the bed cell is compared on the
+ *    two sides of the line (a half-disc each side, so an oblique channel is
+ *    still met): the higher side is upstream (the stream falls through the
+ *    dam). A difference under `upstreamToleranceM` is flagged
+ *    `upstream-ambiguous`.
  * 4. DEM-visible dams: when the bed cell stands at least `demVisibleMinM`
  *    above the lowest ground within `probeM` downstream, the dam shows in
  *    the DEM; the bed becomes that downstream toe.
@@ -32,7 +33,7 @@ import { colToX, rowToY } from '../grid/transform.js';
 import type { Warning } from '../errors.js';
 import type { DamInput } from '../inventory.js';
 import type { PondParams } from './params.js';
-import { LEFT, RIGHT, crestSegments, nearestSegment, segmentDirection, sideOf, type CrestSegments } from './crest-side.js';
+import { LEFT, NEITHER, RIGHT, crestSegments, sideOf, type CrestSegments } from './crest-side.js';
 
 /** Where a crest elevation came from. */
 export type HeightSource = 'measured' | 'dem' | 'default' | 'breach';
@@ -189,7 +190,7 @@ export function setupCrest(
     warn('breached-no-storage', 'breached with no breach height above the bed: counted as holding no water');
   }
 
-  const seedCells = findSeeds(grid, segs, crestCells, bedCol, bedRow, upCode, probe.firstCell[upCode === LEFT ? 0 : 1]!);
+  const seedCells = findSeeds(grid, segs, crestCells, bedCol, bedRow, upCode, probe.nearestCell[upCode === LEFT ? 0 : 1]!);
   if (seedCells.length === 0 && holdsWater) {
     return skip('no-upstream-cell', 'no valid DEM cell next to the crest on its upstream side; extend the DEM or move the crest');
   }
@@ -214,14 +215,19 @@ export function setupCrest(
   };
 }
 
-/** Lowest ground on each side of the bed cell along the crest's local normal, and the first cell probed on each side. */
+/** Lowest ground on each side of the crest near the bed cell, and the nearest valid cell on each side. */
 interface Probe {
   leftM: number;
   rightM: number;
-  /** First valid non-crest cell met on the left and on the right, or -1. */
-  firstCell: Int32Array;
+  /** Nearest valid non-crest cell to the bed cell on the left and on the right, or -1. */
+  nearestCell: Int32Array;
 }
 
+/**
+ * Looks at every valid non-crest cell whose centre lies within `probeM`
+ * (never less than 1.5 cells) of the bed cell's centre, on either side of
+ * the line: a half-disc each side, so an oblique channel is still found.
+ */
 function probeSides(
   grid: Grid,
   segs: CrestSegments,
@@ -232,43 +238,37 @@ function probeSides(
 ): Probe {
   const { width, height, transform: t, z } = grid;
   const crest = new Set<number>(crestCells);
-  const cx = colToX(t, bedCol + 0.5);
-  const cy = rowToY(t, bedRow + 0.5);
-  const dir = new Float64Array(2);
-  const k = nearestSegment(segs, cx, cy);
-  const result: Probe = { leftM: NaN, rightM: NaN, firstCell: new Int32Array([-1, -1]) };
-  if (k < 0) return result;
-  segmentDirection(segs, k, dir);
-  // Left normal in map units, then in pixels per metre of ground.
-  const nc = -dir[1]! / t.dx;
-  const nr = dir[0]! / t.dy;
   const cellW = grid.cellWidthM[bedRow]!;
   const cellH = grid.cellHeightM;
-  const metres = Math.hypot(nc * cellW, nr * cellH);
-  const uc = nc / metres;
-  const ur = nr / metres;
-  const stepM = 0.5 * Math.min(cellW, cellH);
   const reachM = Math.max(probeM, 1.5 * Math.max(cellW, cellH));
-  for (let side = 0; side < 2; side++) {
-    const sign = side === 0 ? 1 : -1;
-    let low = NaN;
-    for (let s = stepM; s <= reachM + 1e-9; s += stepM) {
-      const col = Math.floor(bedCol + 0.5 + sign * s * uc);
-      const row = Math.floor(bedRow + 0.5 + sign * s * ur);
-      if (col < 0 || col >= width || row < 0 || row >= height) break;
+  const dCols = Math.ceil(reachM / cellW);
+  const dRows = Math.ceil(reachM / cellH);
+  const low = [NaN, NaN];
+  const nearD2 = [Infinity, Infinity];
+  const nearestCell = new Int32Array([-1, -1]);
+  for (let row = Math.max(0, bedRow - dRows); row <= Math.min(height - 1, bedRow + dRows); row++) {
+    for (let col = Math.max(0, bedCol - dCols); col <= Math.min(width - 1, bedCol + dCols); col++) {
+      const ex = (col - bedCol) * cellW;
+      const ey = (row - bedRow) * cellH;
+      const d2 = ex * ex + ey * ey;
+      if (d2 > reachM * reachM) continue;
       const i = row * width + col;
       const zi = z[i]!;
       if (crest.has(i) || Number.isNaN(zi)) continue;
-      if (result.firstCell[side] === -1) result.firstCell[side] = i;
-      if (!(zi >= low)) low = zi;
+      const side = sideOf(segs, colToX(t, col + 0.5), rowToY(t, row + 0.5));
+      if (side === NEITHER) continue;
+      const k = side === LEFT ? 0 : 1;
+      if (!(zi >= low[k]!)) low[k] = zi;
+      if (d2 < nearD2[k]!) {
+        nearD2[k] = d2;
+        nearestCell[k] = i;
+      }
     }
-    if (side === 0) result.leftM = low;
-    else result.rightM = low;
   }
-  return result;
+  return { leftM: low[0]!, rightM: low[1]!, nearestCell };
 }
 
-/** Valid non-crest cells 8-adjacent to the bed cell on the upstream side; falls back to the first probed upstream cell. */
+/** Valid non-crest cells 8-adjacent to the bed cell on the upstream side; falls back to the nearest probed upstream cell. */
 function findSeeds(
   grid: Grid,
   segs: CrestSegments,

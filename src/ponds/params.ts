@@ -31,17 +31,19 @@ export interface PondParams {
    */
   demVisibleMinM: number;
   /**
-   * How far (m) either side of the bed cell, along the crest's local normal,
-   * the terrain is probed for the upstream side and the downstream toe.
-   * Never less than 1.5 cells, so coarse DEMs still sample the neighbours.
+   * Radius (m) around the bed cell within which the lowest ground on each
+   * side of the crest is found, for the upstream side and the downstream
+   * toe. 3 m: a project choice, a little more than the base half-width of a
+   * typical beaver dam (from memory). Never less than 1.5 cells, so coarse
+   * DEMs still sample the neighbours.
    */
   probeM: number;
   /**
    * When the lowest ground on the two sides differs by less than this (m),
    * the upstream side inferred from the terrain is flagged ambiguous.
    * 0.02 m: a project choice, about the point-to-point precision of lidar on
-   * smooth ground; a 1 % channel already drops about 0.035 m across a 3 m
-   * probe on each side.
+   * smooth ground (from memory); a 1 % channel already drops about 0.06 m
+   * between the ends of a 3 m probe on each side.
    */
   upstreamToleranceM: number;
   /** Level step of the stage–area–storage curve, metres. */

@@ -210,3 +210,103 @@ export function fillDam(
   if ('skip' in setup) throw new Error(setup.skip.message);
   return { setup, fill: fillBehindCrest(grid, setup, options) };
 }
+
+/** Size, transform and seed of the GRASS r.lake reference valley (fictional coordinates). */
+export const REFERENCE_VALLEY = {
+  width: 200,
+  height: 300,
+  transform: { x0: 412000, y0: 5268300, dx: 1, dy: -1 } as GeoTransform,
+  seed: 20240611,
+};
+
+/**
+ * The seeded valley of the GRASS r.lake reference: a meandering channel
+ * falling 0.8 % to the south, a gently sloping floodplain (1:15) 25 m each
+ * side, steeper valley walls (1:3), an incised thalweg and ±0.25 m of smooth
+ * roughness. Elevations rounded to 0.01 m, as written to the ASCII grid.
+ */
+export function referenceValley(): Grid {
+  const { width, height, transform, seed } = REFERENCE_VALLEY;
+  const noise = valueNoise(width, height, 16, 3, seed);
+  const z = new Float32Array(width * height);
+  for (let row = 0; row < height; row++) {
+    const centre = referenceChannelCol(row);
+    for (let col = 0; col < width; col++) {
+      const d = Math.abs(col + 0.5 - centre);
+      const across = d < 25 ? d / 15 : 25 / 15 + (d - 25) / 3;
+      const v = 40 + 0.008 * (height - row - 0.5) + across - 0.3 * Math.exp(-((d / 1.5) ** 2)) + 0.25 * noise[row * width + col]!;
+      z[row * width + col] = Math.round(v * 100) / 100;
+    }
+  }
+  return makeGrid({ width, height, z, transform });
+}
+
+/** Fractional column of the reference valley's channel centre in a row. */
+export function referenceChannelCol(row: number): number {
+  return 100 + 18 * Math.sin((2 * Math.PI * row) / 170) + 6 * Math.sin((2 * Math.PI * row) / 53);
+}
+
+/**
+ * Dams of the reference valley: a lower dam with a measured height, an
+ * upper dam it drowns, and a short crest far upstream that spills around
+ * its ends (its upstream side left to the terrain). Crest lines run
+ * west → east, so north (upstream) is on the left.
+ */
+export function referenceDams(): DamInput[] {
+  const t = REFERENCE_VALLEY.transform;
+  const across = (row: number, halfM: number): [number, number][][] => {
+    const x = colToX(t, referenceChannelCol(row));
+    const y = rowToY(t, row + 0.5);
+    return [[[x - halfM, y], [x + halfM, y]]];
+  };
+  return [
+    makeDam({ id: 'lower', index: 0, lines: across(250, 45), heightM: 1.237, upstream: 'left' }),
+    makeDam({ id: 'upper', index: 1, lines: across(215, 45), heightM: 0.583, upstream: 'left' }),
+    makeDam({ id: 'short', index: 2, lines: across(60, 4) }),
+  ];
+}
+
+/** An ESRI ASCII grid (AAIGrid) of a north-up grid, elevations with `decimals` places, NaN as -9999. */
+export function toAsciiGrid(grid: Grid, decimals: number): string {
+  const { width, height, transform: t } = grid;
+  const lines = [
+    `ncols ${width}`,
+    `nrows ${height}`,
+    `xllcorner ${t.x0}`,
+    `yllcorner ${t.y0 + height * t.dy}`,
+    `cellsize ${t.dx}`,
+    'NODATA_value -9999',
+  ];
+  for (let row = 0; row < height; row++) {
+    const vals: string[] = [];
+    for (let col = 0; col < width; col++) {
+      const v = grid.z[row * width + col]!;
+      vals.push(Number.isNaN(v) ? '-9999' : v.toFixed(decimals));
+    }
+    lines.push(vals.join(' '));
+  }
+  return lines.join('\n') + '\n';
+}
+
+/** Parses an ESRI ASCII grid with square cells (corner-registered) into a Grid; NODATA_value cells become NaN. */
+export function parseAsciiGrid(text: string): Grid {
+  const tokens = text.split(/\s+/).filter((s) => s.length > 0);
+  const header = new Map<string, number>();
+  let k = 0;
+  while (k + 1 < tokens.length && /^[a-z_]+$/i.test(tokens[k]!)) {
+    header.set(tokens[k]!.toLowerCase(), Number(tokens[k + 1]));
+    k += 2;
+  }
+  const width = header.get('ncols')!;
+  const height = header.get('nrows')!;
+  const cell = header.get('cellsize')!;
+  const nodata = header.get('nodata_value');
+  const z = new Float32Array(width * height);
+  for (let i = 0; i < width * height; i++) {
+    const v = Number(tokens[k + i]);
+    z[i] = v === nodata ? NaN : v;
+  }
+  const x0 = header.get('xllcorner')!;
+  const y0 = header.get('yllcorner')! + height * cell;
+  return makeGrid({ width, height, z, transform: { x0, y0, dx: cell, dy: -cell } });
+}
