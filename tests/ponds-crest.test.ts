@@ -47,12 +47,23 @@ describe('bed and crest elevation', () => {
     expect(s.crestElevM).toBe(1.0);
     expect(s.heightSource).toBe('default');
   });
-  it('seeds lie next to the bed on the upstream side; downstream cells border the crest on the other side', () => {
+  it('seeds lie next to the bed on the upstream side; the spill band lies within 3 cells on the other side', () => {
     const s = ok(setup(grid, makeDam({ id: 'c', lines: across, upstream: 'left' })));
     expect(s.seedCells.length).toBe(3);
     for (const i of s.seedCells) expect(rowY(grid, i)).toBe(0.5);
-    expect(s.downstreamCells.length).toBeGreaterThan(50);
-    for (const i of s.downstreamCells) expect(rowY(grid, i)).toBe(-0.5);
+    const rows = new Set(Array.from(s.downstreamCells, (i) => rowY(grid, i)));
+    expect([...rows].sort((a, b) => a - b)).toEqual([-1.5, -1, -0.5]);
+  });
+  it('the spill band wraps round the crest ends on the downstream side only', () => {
+    const short = ok(setup(grid, makeDam({ id: 'e', lines: [[[-5, 0], [5, 0]]], upstream: 'left' })));
+    const t = grid.transform;
+    const band = new Set(short.downstreamCells);
+    const cellAt = (x: number, y: number): number =>
+      Math.floor((y - t.y0) / t.dy) * grid.width + Math.floor((x - t.x0) / t.dx);
+    expect(band.has(cellAt(6, -0.5))).toBe(true); // beyond the east end, downstream
+    expect(band.has(cellAt(-6, -1))).toBe(true); // beyond the west end, downstream
+    expect(band.has(cellAt(6, 0))).toBe(false); // on the crest line extended
+    expect(band.has(cellAt(6, 0.5))).toBe(false); // beyond the end, upstream
   });
 });
 

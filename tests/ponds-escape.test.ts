@@ -35,6 +35,33 @@ describe('spill around the end of the crest', () => {
     expect(Math.abs(pond.volumeM3 / ref.volumeM3 - 1)).toBeLessThan(1e-9);
   });
 
+  it('a crest ending in the channel spills at once, round its end', () => {
+    const grid = vValley(frame, 10, 0.01);
+    // Crest over x ≤ 0 only; the dam-row cell just east of its end (x = 0.5 m) has z = 0.05 m.
+    const { fill } = fillDam(grid, makeDam({ id: 'h', lines: [[[-14, 0], [0, 0]]], upstream: 'left' }));
+    expect(fill.limitedBy).toBe('spill');
+    expect(fill.waterLevelM).toBe(grid.z[frame.damRow * frame.width + 31]);
+    expect(fill.waterLevelM).toBeCloseTo(zAt(0.5, 0), 3);
+  });
+
+  it('a bent (chevron) crest, pointing either way, holds to its crest: same pond as a plain flood fill', () => {
+    const grid = vValley(frame, 10, 0.01);
+    for (const lines of [
+      [[[-14, 0], [0, 4], [14, 0]]],
+      [[[-14, 4], [0, 0], [14, 4]]],
+    ] as [number, number][][][]) {
+      const { setup, fill } = fillDam(grid, makeDam({ id: 'c', lines, heightM: 0.9, upstream: 'left' }));
+      expect(fill.limitedBy).toBe('crest');
+      const ref = thresholdPond(grid, setup.seedCells, setup.crestCells, fill.waterLevelM);
+      const pond = pondAt(fill, fill.waterLevelM);
+      expect(pond.cellCount).toBe(ref.cellCount);
+      expect(Math.abs(pond.volumeM3 / ref.volumeM3 - 1)).toBeLessThan(1e-9);
+      // Every seed is north of the crest, every spill-band cell south of it.
+      for (const i of setup.seedCells) expect(ref.cells.has(i)).toBe(true);
+      for (const i of setup.downstreamCells) expect(ref.cells.has(i)).toBe(false);
+    }
+  });
+
   it('a crest reaching above the water on both valley sides does not spill', () => {
     const grid = vValley(frame, 10, 0.01);
     const { fill } = fillDam(grid, makeDam({ id: 'w', lines: [[[-12, 0], [12, 0]]], upstream: 'left' }));

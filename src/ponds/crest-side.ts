@@ -3,10 +3,12 @@
  *
  * A point takes the side of its nearest crest segment: left when the cross
  * product of the segment direction and the point's offset is positive (map
- * x east, y north). A point whose nearest crest point is an end of a
- * polyline lies beyond the end of the crest and is on neither side (0).
- * Nearest-segment sides can be wrong close to a sharp bend; crests are
- * short and nearly straight, so this is accepted.
+ * x east, y north). Where the nearest crest point is a bend (an interior
+ * vertex), the side is the sign along the sum of the two segments' unit
+ * normals (the pseudonormal of Bærentzen & Aanæs 2005), so points outside
+ * a sharp bend are not misread. Beyond a crest end the side is that of the
+ * end segment's line extended; points on that line (or on the crest) are on
+ * neither side (0).
  */
 
 /** Crest segments in map coordinates, flattened for repeated queries. */
@@ -87,12 +89,29 @@ function segmentParameter(s: CrestSegments, k: number, x: number, y: number): nu
   return t < 0 ? 0 : t > 1 ? 1 : t;
 }
 
-/** LEFT, RIGHT or NEITHER (beyond a crest end, or exactly on the line) for a point in map units. */
+/** LEFT, RIGHT or NEITHER (exactly on the crest or on the extension of an end segment) for a point in map units. */
 export function sideOf(s: CrestSegments, x: number, y: number): number {
   const k = nearestSegment(s, x, y);
   if (k < 0) return NEITHER;
   const t = segmentParameter(s, k, x, y);
-  if ((t === 0 && s.startsLine[k] === 1) || (t === 1 && s.endsLine[k] === 1)) return NEITHER;
-  const cross = (s.bx[k]! - s.ax[k]!) * (y - s.ay[k]!) - (s.by[k]! - s.ay[k]!) * (x - s.ax[k]!);
-  return cross > 0 ? LEFT : cross < 0 ? RIGHT : NEITHER;
+  const dx = s.bx[k]! - s.ax[k]!;
+  const dy = s.by[k]! - s.ay[k]!;
+  const len = Math.hypot(dx, dy);
+  // Unit left normal of segment k.
+  let nx = -dy / len;
+  let ny = dx / len;
+  let px = s.ax[k]!;
+  let py = s.ay[k]!;
+  const bend = t === 1 && s.endsLine[k] === 0 ? k + 1 : t === 0 && s.startsLine[k] === 0 ? k - 1 : -1;
+  if (bend >= 0) {
+    const ex = s.bx[bend]! - s.ax[bend]!;
+    const ey = s.by[bend]! - s.ay[bend]!;
+    const elen = Math.hypot(ex, ey);
+    nx += -ey / elen;
+    ny += ex / elen;
+    px = t === 1 ? s.bx[k]! : s.ax[k]!;
+    py = t === 1 ? s.by[k]! : s.ay[k]!;
+  }
+  const dot = (x - px) * nx + (y - py) * ny;
+  return dot > 0 ? LEFT : dot < 0 ? RIGHT : NEITHER;
 }

@@ -43,7 +43,7 @@ export interface CrestSetup {
   damId: string;
   /** Crest cells (flat indices), walls for this dam's fill. */
   crestCells: Int32Array;
-  /** Non-crest cells 8-adjacent to the crest on its downstream side; water reaching one has gone around the crest. */
+  /** The spill band: non-crest cells within SPILL_BAND_CELLS of the crest on its downstream side; water reaching one has gone round the crest. */
   downstreamCells: Int32Array;
   /** Lowest crest cell (flat index): where the channel crosses the dam. */
   bedCell: number;
@@ -295,23 +295,36 @@ function findSeeds(
   return Int32Array.from(seeds);
 }
 
-/** Valid non-crest cells 8-adjacent to any crest cell and on the given side of the line. */
+/**
+ * Radius of the spill band, in cells: valid non-crest cells whose centre is
+ * within this many cells of a crest cell's centre, on the downstream side.
+ * Water reaching the band has gone round the crest (or through a gap): the
+ * fill calls that a spill. 3 cells catches water that rounds a crest end
+ * one or two cells out, even diagonally (a project choice).
+ */
+export const SPILL_BAND_CELLS = 3;
+
+/** Valid non-crest cells within SPILL_BAND_CELLS of a crest cell and on the given side of the line. */
 function sideCells(grid: Grid, segs: CrestSegments, crestCells: Int32Array, sideCode: number): Int32Array {
   const { width, height, transform: t, z } = grid;
   const crest = new Set<number>(crestCells);
-  const found = new Set<number>();
+  const checked = new Set<number>();
+  const found: number[] = [];
+  const r = SPILL_BAND_CELLS;
   for (let k = 0; k < crestCells.length; k++) {
     const c = crestCells[k]!;
     const col0 = c % width;
     const row0 = (c - col0) / width;
-    for (let dr = -1; dr <= 1; dr++) {
-      for (let dc = -1; dc <= 1; dc++) {
+    for (let dr = -r; dr <= r; dr++) {
+      for (let dc = -r; dc <= r; dc++) {
         const col = col0 + dc;
         const row = row0 + dr;
-        if (col < 0 || col >= width || row < 0 || row >= height) continue;
+        if (dc * dc + dr * dr > r * r || col < 0 || col >= width || row < 0 || row >= height) continue;
         const i = row * width + col;
-        if (crest.has(i) || found.has(i) || Number.isNaN(z[i]!)) continue;
-        if (sideOf(segs, colToX(t, col + 0.5), rowToY(t, row + 0.5)) === sideCode) found.add(i);
+        if (checked.has(i)) continue;
+        checked.add(i);
+        if (crest.has(i) || Number.isNaN(z[i]!)) continue;
+        if (sideOf(segs, colToX(t, col + 0.5), rowToY(t, row + 0.5)) === sideCode) found.push(i);
       }
     }
   }

@@ -12,8 +12,8 @@
  * h when its join level is below h; every pond cell then has depth > 0.
  *
  * Escape: the first popped cell that
- * - is one of the crest's downstream cells (non-crest cells 8-adjacent to
- *   the crest on its downstream side: the water went around a crest end),
+ * - is in the crest's spill band (cells within 3 cells of the crest on its
+ *   downstream side, round the ends too: the water went round the crest),
  *   → 'spill';
  * - lies on the edge of the reach box (or grid) → 'edge';
  * - is 8-adjacent to NoData → 'nodata' (a pond reaching a DEM gap is
