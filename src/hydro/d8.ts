@@ -1,0 +1,95 @@
+/**
+ * D8 flow directions: each cell drains to the one neighbour of steepest
+ * descent (O'Callaghan & Mark 1984, "The extraction of drainage networks
+ * from digital elevation data", Computer Vision, Graphics, and Image
+ * Processing 28). Slopes use real centre-to-centre distances in metres
+ * (anisotropic and geographic cells); ties go to the first direction
+ * clockwise from north.
+ *
+ * Policies:
+ * - A cell on the grid edge or next to NoData with no lower neighbour drains
+ *   out (`DIR_OUTLET`); with a lower neighbour it drains to it.
+ * - Cells with no lower neighbour elsewhere are flats; they are routed by
+ *   {@link resolveFlats} (Barnes et al. 2014), so on a filled DEM every cell
+ *   drains to an outlet. On an unfilled DEM, cells in pits keep `DIR_NONE`
+ *   and are counted in `pitCells`.
+ */
+import type { Grid } from '../grid/grid.js';
+import { isEdgeCell } from './fill.js';
+import { resolveFlats } from './flats.js';
+import { DIR_COL, DIR_NONE, DIR_OUTLET, DIR_ROW, neighbourDistancesM, neighbourOffsets } from './neighbours.js';
+
+/** Marks a flat cell between the two passes. */
+export const DIR_FLAT = 254;
+
+/** Result of {@link flowDirections}. */
+export interface FlowDirections {
+  /** Per cell: direction code 0–7, `DIR_OUTLET` or `DIR_NONE` (see neighbours.ts). */
+  readonly dir: Uint8Array;
+  /** Cells on flats (no lower neighbour) that were routed across the flat. */
+  readonly flatCells: number;
+  /** Cells left without a drain (pits of an unfilled DEM); 0 on a filled DEM. */
+  readonly pitCells: number;
+}
+
+/**
+ * D8 directions on `filledZ` (metres; normally from {@link fillDepressions}),
+ * with the grid's cell sizes for slopes.
+ */
+export function flowDirections(
+  grid: Pick<Grid, 'width' | 'height' | 'cellWidthM' | 'cellHeightM'>,
+  filledZ: Float32Array,
+): FlowDirections {
+  const { width, height } = grid;
+  const n = width * height;
+  if (filledZ.length !== n) throw new Error(`elevation has ${filledZ.length} cells; expected ${n}`);
+  const dir = new Uint8Array(n);
+  const off = neighbourOffsets(width);
+  const dist = new Float64Array(8);
+  const invDist = new Float64Array(8);
+  let flatCount = 0;
+  for (let r = 0; r < height; r++) {
+    neighbourDistancesM(grid.cellWidthM, grid.cellHeightM, r, dist);
+    for (let d = 0; d < 8; d++) invDist[d] = 1 / (dist[d] ?? 1);
+    const interiorRow = r > 0 && r < height - 1;
+    for (let c = 0; c < width; c++) {
+      const i = r * width + c;
+      const zi = filledZ[i] ?? NaN;
+      if (Number.isNaN(zi)) {
+        dir[i] = DIR_NONE;
+        continue;
+      }
+      const interior = interiorRow && c > 0 && c < width - 1;
+      let best = 0;
+      let bestDir = -1;
+      for (let d = 0; d < 8; d++) {
+        if (!interior) {
+          const rr = r + (DIR_ROW[d] ?? 0);
+          const cc = c + (DIR_COL[d] ?? 0);
+          if (rr < 0 || cc < 0 || rr >= height || cc >= width) continue;
+        }
+        const drop = zi - (filledZ[i + (off[d] ?? 0)] ?? NaN); // NaN (NoData) compares false
+        if (drop > 0) {
+          const slope = drop * (invDist[d] ?? 0);
+          if (slope > best) {
+            best = slope;
+            bestDir = d;
+          }
+        }
+      }
+      if (bestDir >= 0) {
+        dir[i] = bestDir;
+      } else if (isEdgeCell(filledZ, width, height, r, c)) {
+        dir[i] = DIR_OUTLET;
+      } else {
+        dir[i] = DIR_FLAT;
+        flatCount++;
+      }
+    }
+  }
+  let pitCells = 0;
+  if (flatCount > 0) {
+    pitCells = resolveFlats(grid, filledZ, dir, flatCount);
+  }
+  return { dir, flatCells: flatCount - pitCells, pitCells };
+}
