@@ -73,11 +73,12 @@ export interface PondFill {
 export interface FillScratch {
   /** Number of grid cells the stamps cover. */
   readonly cellCount: number;
-  /** Current stamp; a cell is marked for this flood when its entry equals it (no clearing per dam). */
+  /** Current stamp (no clearing per dam): mark[i] = stamp for a visited or crest cell, −stamp for an unvisited spill-band cell. */
   stamp: number;
-  readonly visited: Int32Array;
-  readonly downstream: Int32Array;
+  readonly mark: Int32Array;
   readonly heap: MinHeap;
+  /** FIFO of cells joining at the current level (pits and flats). */
+  pit: Int32Array;
   order: Int32Array;
   joinM: Float64Array;
   cumAreaM2: Float64Array;
@@ -90,9 +91,9 @@ export function createFillScratch(cellCount: number): FillScratch {
   return {
     cellCount,
     stamp: 0,
-    visited: new Int32Array(cellCount),
-    downstream: new Int32Array(cellCount),
+    mark: new Int32Array(cellCount),
     heap: new MinHeap(n),
+    pit: new Int32Array(n),
     order: new Int32Array(n),
     joinM: new Float64Array(n),
     cumAreaM2: new Float64Array(n),
@@ -122,18 +123,18 @@ export function fillBehindCrest(grid: Grid, setup: CrestSetup, options: FillOpti
   const lastRow = Math.min(height, box?.row1 ?? height) - 1;
 
   const stamp = nextStamp(s);
-  const visited = s.visited;
-  const downstream = s.downstream;
-  for (let k = 0; k < setup.crestCells.length; k++) visited[setup.crestCells[k]!] = stamp;
-  for (let k = 0; k < setup.downstreamCells.length; k++) downstream[setup.downstreamCells[k]!] = stamp;
+  const mark = s.mark;
+  const band = -stamp;
+  for (let k = 0; k < setup.downstreamCells.length; k++) mark[setup.downstreamCells[k]!] = band;
+  for (let k = 0; k < setup.crestCells.length; k++) mark[setup.crestCells[k]!] = stamp;
   const heap = s.heap;
   heap.clear();
   for (let k = 0; k < setup.seedCells.length; k++) {
     const i = setup.seedCells[k]!;
     const col = i % width;
     const row = (i - col) / width;
-    if (col < col0 || col > lastCol || row < row0 || row > lastRow || visited[i] === stamp) continue;
-    visited[i] = stamp;
+    if (col < col0 || col > lastCol || row < row0 || row > lastRow || mark[i] === stamp) continue;
+    mark[i] = stamp;
     heap.push(i, z[i]!);
   }
   if (heap.size === 0) throw new Error(`fill of dam ${setup.damId}: the reach box holds none of its seed cells`);
@@ -147,17 +148,38 @@ export function fillBehindCrest(grid: Grid, setup: CrestSetup, options: FillOpti
   let escapeLevelM = Infinity;
   let escapeCell = -1;
   let escapeKind: EscapeKind | null = null;
-  while (heap.size > 0) {
-    const i = heap.pop();
-    const level = heap.lastPriority;
-    if (level > maxLevelM) break;
+  // Improved priority-flood (Barnes et al. 2014, Algorithm 3): a neighbour at or below the current
+  // level joins at that level, so it goes to a plain FIFO queue served before the heap.
+  // Spill-band cells travel through both queues as ~index (negative), so no second lookup is needed.
+  let pit = s.pit;
+  let pitHead = 0;
+  let pitTail = 0;
+  let order = s.order;
+  let joinM = s.joinM;
+  let cumA = s.cumAreaM2;
+  let cumZ = s.cumAreaZ;
+  let level = -Infinity;
+  for (;;) {
+    let i: number;
+    if (pitHead < pitTail) {
+      i = pit[pitHead++]!;
+    } else {
+      if (heap.size === 0) break;
+      pitHead = 0;
+      pitTail = 0;
+      i = heap.pop();
+      level = heap.lastPriority;
+      if (level > maxLevelM) break;
+    }
     popped++;
+    const inBand = i < 0;
+    if (inBand) i = ~i;
     const col = i % width;
     const row = (i - col) / width;
-    if (downstream[i] === stamp) escapeKind = 'spill';
+    if (inBand) escapeKind = 'spill';
     else if (col === col0 || col === lastCol || row === row0 || row === lastRow) escapeKind = 'edge';
     else {
-      // Interior of the box: all 8 neighbours exist. Push them, watching for NoData.
+      // Interior of the box: all 8 neighbours exist. Queue them, watching for NoData.
       for (let k = 0; k < 8; k++) {
         const j = i + offsets[k]!;
         const zj = z[j]!;
@@ -165,9 +187,16 @@ export function fillBehindCrest(grid: Grid, setup: CrestSetup, options: FillOpti
           escapeKind = 'nodata';
           break;
         }
-        if (visited[j] === stamp) continue;
-        visited[j] = stamp;
-        heap.push(j, zj > level ? zj : level);
+        const m = mark[j]!;
+        if (m === stamp) continue;
+        mark[j] = stamp;
+        const id = m === band ? ~j : j;
+        if (zj <= level) {
+          if (pitTail === pit.length) pit = growPit(s);
+          pit[pitTail++] = id;
+        } else {
+          heap.push(id, zj);
+        }
       }
     }
     if (escapeKind !== null) {
@@ -175,23 +204,29 @@ export function fillBehindCrest(grid: Grid, setup: CrestSetup, options: FillOpti
       escapeCell = i;
       break;
     }
-    if (count === s.order.length) growOutputs(s);
+    if (count === order.length) {
+      growOutputs(s);
+      order = s.order;
+      joinM = s.joinM;
+      cumA = s.cumAreaM2;
+      cumZ = s.cumAreaZ;
+    }
     const a = cellAreaM2[row]!;
     sumA += a;
     sumAZ += a * (z[i]! - zRefM);
-    s.order[count] = i;
-    s.joinM[count] = level;
-    s.cumAreaM2[count] = sumA;
-    s.cumAreaZ[count] = sumAZ;
+    order[count] = i;
+    joinM[count] = level;
+    cumA[count] = sumA;
+    cumZ[count] = sumAZ;
     count++;
   }
 
   const limited = escapeKind !== null && escapeLevelM < crestElevM;
   return {
-    order: s.order.slice(0, count),
-    joinM: s.joinM.slice(0, count),
-    cumAreaM2: s.cumAreaM2.slice(0, count),
-    cumAreaZ: s.cumAreaZ.slice(0, count),
+    order: order.slice(0, count),
+    joinM: joinM.slice(0, count),
+    cumAreaM2: cumA.slice(0, count),
+    cumAreaZ: cumZ.slice(0, count),
     zRefM,
     waterLevelM: limited ? escapeLevelM : crestElevM,
     limitedBy: limited && escapeKind !== null ? escapeKind : 'crest',
@@ -227,12 +262,18 @@ function emptyFill(setup: CrestSetup): PondFill {
 
 function nextStamp(s: FillScratch): number {
   if (s.stamp >= 0x7ffffffe) {
-    s.visited.fill(0);
-    s.downstream.fill(0);
+    s.mark.fill(0);
     s.stamp = 0;
   }
   s.stamp += 1;
   return s.stamp;
+}
+
+function growPit(s: FillScratch): Int32Array {
+  const pit = new Int32Array(s.pit.length * 2);
+  pit.set(s.pit);
+  s.pit = pit;
+  return pit;
 }
 
 function growOutputs(s: FillScratch): void {
