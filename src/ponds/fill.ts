@@ -39,7 +39,11 @@ export interface ReachBox {
   row1: number;
 }
 
-/** The result of one flood: the whole stage–area–storage relation of a dam up to `topLevelM`. */
+/**
+ * The result of one flood: the whole stage–area–storage relation of a dam up
+ * to `topLevelM`. Its arrays are its own (copied out of the scratch), so a
+ * fill stays valid after the scratch serves the next dam.
+ */
 export interface PondFill {
   /** Flat indices of flooded cells, by non-decreasing join level. */
   order: Int32Array;
