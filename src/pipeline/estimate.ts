@@ -142,9 +142,8 @@ function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, 
   for (const wn of setup.warnings) note(result, warnings, wn);
   const own = w.box!;
   const reachBox = { col0: own.col0 - box.col0, row0: own.row0 - box.row0, col1: own.col1 - box.col0, row1: own.row1 - box.row0 };
-  const fill = fillBehindCrest(grid, setup, { reachBox }, scratch);
-  // The scratch buffers are reused by the next dam: keep copies of this fill's arrays.
-  const kept: PondFill = { ...fill, order: fill.order.slice(), joinM: fill.joinM.slice(), cumAreaM2: fill.cumAreaM2.slice(), cumAreaZ: fill.cumAreaZ.slice() };
+  // The fill's arrays are its own (the scratch only holds working buffers), so it can be kept.
+  const kept = fillBehindCrest(grid, setup, { reachBox }, scratch);
   w.setup = setup;
   w.fill = kept;
   const stats = pondStats(grid, kept);
