@@ -1,0 +1,78 @@
+/**
+ * The terrain step in one call: fill, D8 with flats routed, flow order,
+ * contributing area, streams, links, sub-watersheds, HAND and the valley
+ * bottom. Each piece is also exported on its own.
+ */
+import type { Grid } from '../grid/grid.js';
+import { flowAccumulationM2 } from './accumulation.js';
+import { flowDirections } from './d8.js';
+import { fillDepressions } from './fill.js';
+import { heightAboveDrainage, type HandResult } from './hand.js';
+import { flowOrder } from './order.js';
+import { streamLengthM } from './stream-length.js';
+import { DEFAULT_STREAM_THRESHOLD_M2, streamLinks, streamMask, type StreamLinks } from './streams.js';
+import { valleyBottom, type ValleyBottomOptions } from './valley-bottom.js';
+import { subWatersheds } from './watersheds.js';
+
+/** Options of {@link analyseTerrain}. */
+export interface TerrainOptions {
+  /** Contributing area that starts a stream, m². Default {@link DEFAULT_STREAM_THRESHOLD_M2}. */
+  streamThresholdM2?: number;
+  /** Valley-bottom threshold rule; see valley-bottom.ts. */
+  valleyBottom?: ValleyBottomOptions;
+  /** HAND from the original DEM (default, keeps real depressions) or the filled one. */
+  handSurface?: 'original' | 'filled';
+}
+
+/** Everything the terrain step derives from a DEM; all rasters on `grid`, flat-indexed. */
+export interface Terrain {
+  /** Depression-filled elevation, m. */
+  readonly filledZ: Float32Array;
+  /** D8 direction codes (see neighbours.ts). */
+  readonly dir: Uint8Array;
+  /** Valid cells, upstream before downstream. */
+  readonly order: Int32Array;
+  /** Contributing area, m². */
+  readonly accumulationM2: Float64Array;
+  /** 1 on stream cells. */
+  readonly stream: Uint8Array;
+  /** Stream links. */
+  readonly links: StreamLinks;
+  /** Stream length carried by each cell, m. */
+  readonly streamLengthM: Float32Array;
+  /** Link each cell drains into (0: reaches no stream). */
+  readonly watershed: Int32Array;
+  /** Height above nearest drainage. */
+  readonly hand: HandResult;
+  /** 1 in the valley bottom. */
+  readonly valleyBottom: Uint8Array;
+  /** Counts worth reporting: raised cells, routed flat cells, pits left. */
+  readonly stats: { raisedCells: number; flatCells: number; pitCells: number };
+}
+
+/** Runs the whole terrain step on `grid` (elevations in metres, NaN for NoData). */
+export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrain {
+  const fill = fillDepressions(grid);
+  const flow = flowDirections(grid, fill.filledZ);
+  const order = flowOrder(flow.dir, fill.filledZ, grid.width);
+  const accumulationM2 = flowAccumulationM2(grid, flow.dir, order);
+  const stream = streamMask(accumulationM2, options.streamThresholdM2 ?? DEFAULT_STREAM_THRESHOLD_M2);
+  const links = streamLinks(flow.dir, order, stream, grid.width);
+  const lengths = streamLengthM(grid, flow.dir, stream);
+  const watershed = subWatersheds(flow.dir, order, links, grid.width);
+  const handZ = options.handSurface === 'filled' ? fill.filledZ : grid.z;
+  const hand = heightAboveDrainage(handZ, flow.dir, order, stream, grid.width);
+  return {
+    filledZ: fill.filledZ,
+    dir: flow.dir,
+    order,
+    accumulationM2,
+    stream,
+    links,
+    streamLengthM: lengths,
+    watershed,
+    hand,
+    valleyBottom: valleyBottom(hand, accumulationM2, options.valleyBottom),
+    stats: { raisedCells: fill.raisedCells, flatCells: flow.flatCells, pitCells: flow.pitCells },
+  };
+}
