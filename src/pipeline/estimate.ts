@@ -13,18 +13,21 @@ import type { Warning } from '../errors.js';
 import type { Grid } from '../grid/grid.js';
 import { polygoniseCells } from '../grid/polygonise.js';
 import { rasteriseLines } from '../grid/rasterise-line.js';
-import { cellMetrics } from '../io/crs.js';
+import { WGS84, cellMetrics, makeTransform } from '../io/crs.js';
 import { colToX, rowToY, xToCol, yToRow } from '../grid/transform.js';
 import type { DamInput } from '../inventory.js';
 import type { DemSource } from '../io/dem.js';
 import { combinePonds, type PondLayer } from '../ponds/combine.js';
-import { setupCrest, type CrestSetup } from '../ponds/crest.js';
-import { createFillScratch, fillBehindCrest, type PondFill } from '../ponds/fill.js';
+import type { CrestSetup } from '../ponds/crest.js';
+import { createFillScratch, type PondFill } from '../ponds/fill.js';
+import { setupAndFill } from '../ponds/upstream-by-fill.js';
 import type { PondParams } from '../ponds/params.js';
 import { crestFromPoint } from '../ponds/point-crest.js';
 import { pondStats, stageStorage } from '../ponds/stage-storage.js';
 import type { DamResult, Totals } from './result.js';
 import { clipBox, groupBoxes, unionBox, type CellBox } from './windows.js';
+import { crestLocation } from './crest-location.js';
+import { ScenarioTally, type Scenarios } from './scenarios.js';
 
 /** Run-level parameters beyond the pond engine's own. */
 export interface EstimateParams {
@@ -57,6 +60,8 @@ export interface EstimateResult {
   warnings: Warning[];
   /** Cells the floods visited, summed over dams (work done). */
   cellsVisited: number;
+  /** Existing and existing-plus-proposed water surfaces (scenarios.ts); the totals above are the existing one. */
+  scenarios?: Scenarios;
 }
 
 interface Working {
@@ -76,8 +81,9 @@ export async function estimatePonds(
 ): Promise<EstimateResult> {
   const warnings: Warning[] = [];
   const cellM = demCellSizeM(dem);
+  const toLonLat = makeTransform(dem.crs, WGS84);
   const work: Working[] = dams.map((dam) => {
-    const result = emptyResult(dam, params.minConfidence);
+    const result = { ...emptyResult(dam, params.minConfidence), ...crestLocation(dam.geometry, toLonLat) };
     const box = searchBox(dem, dam, params, cellM);
     if (!box) skip(result, warnings, {
       code: 'outside-dem',
@@ -95,6 +101,7 @@ export async function estimatePonds(
 
   let done = 0;
   let cellsVisited = 0;
+  const scenarioTally = new ScenarioTally(work.length);
   for (const group of groups) {
     const { box } = group;
     const grid = await dem.readWindow(box.col0, box.row0, box.col1 - box.col0, box.row1 - box.row0);
@@ -106,10 +113,12 @@ export async function estimatePonds(
       progress?.({ stage: 'ponds', done: ++done, total: dams.length });
     }
     combineGroup(grid, group.members.map((k) => work[k]!), box, depth!, outlines, work);
+    scenarioTally.addGroup(grid, group.members.map((k) => ({ index: k, result: work[k]!.result, fill: work[k]!.fill })));
   }
 
   const results = work.map((w) => w.result);
-  return { dams: results, totals: totalsOf(results), depth, outlines, warnings, cellsVisited };
+  const totals = totalsOf(results);
+  return { dams: results, totals, depth, outlines, warnings, cellsVisited, scenarios: scenarioTally.finish(results, totals) };
 }
 
 /** Builds the crest, fills behind it and records the dam's own pond. */
@@ -137,13 +146,14 @@ function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, 
       message: `dam ${dam.id}: ${crest.outside} crest vertices lie off the DEM; the crest is cut at the DEM's edge`,
     });
   }
-  const setup = setupCrest(grid, dam, crest.cells, params.pond);
-  if ('skip' in setup) return skip(result, warnings, setup.skip);
-  for (const wn of setup.warnings) note(result, warnings, wn);
   const own = w.box!;
   const reachBox = { col0: own.col0 - box.col0, row0: own.row0 - box.row0, col1: own.col1 - box.col0, row1: own.row1 - box.row0 };
-  // The fill's arrays are its own (the scratch only holds working buffers), so it can be kept.
-  const kept = fillBehindCrest(grid, setup, { reachBox }, scratch);
+  // A crest built from a point is a line from here on.
+  const lineDam: DamInput = dam.geometry.kind === 'line' ? dam : { ...dam, geometry: { kind: 'line', lines } };
+  const done = setupAndFill(grid, lineDam, crest.cells, params.pond, { reachBox }, scratch);
+  if ('skip' in done) return skip(result, warnings, done.skip);
+  const { setup, fill: kept } = done;
+  for (const wn of setup.warnings) note(result, warnings, wn);
   w.setup = setup;
   w.fill = kept;
   const stats = pondStats(grid, kept);

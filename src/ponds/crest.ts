@@ -15,8 +15,12 @@
  *    dam). A difference under `upstreamToleranceM` is flagged
  *    `upstream-ambiguous`.
  * 4. DEM-visible dams: when the bed cell stands at least `demVisibleMinM`
- *    above the lowest ground within `probeM` downstream, the dam shows in
- *    the DEM; the bed becomes that downstream toe.
+ *    above the lowest ground within `probeM` downstream, AND the crest's
+ *    valley-floor cells stand, by their median, at least `demVisibleMinM`
+ *    above the ground `probeM` straight downstream of each (a ridge across
+ *    the valley, not one noisy low cell), the dam shows in the DEM; the bed
+ *    becomes that downstream toe. The median keeps cell-to-cell lidar noise
+ *    (QL2: 10 cm RMSEz) from passing for a dam.
  * 5. Crest elevation: bed + measured height ('measured'); else for a
  *    DEM-visible dam the crest's lowest DEM point ('dem'); else bed +
  *    `defaultHeightM` ('default').
@@ -33,7 +37,7 @@ import { colToX, rowToY } from '../grid/transform.js';
 import type { Warning } from '../errors.js';
 import type { DamInput } from '../inventory.js';
 import type { PondParams } from './params.js';
-import { LEFT, NEITHER, RIGHT, crestSegments, sideOf, type CrestSegments } from './crest-side.js';
+import { LEFT, NEITHER, RIGHT, crestSegments, nearestSegment, sideOf, type CrestSegments } from './crest-side.js';
 
 /** Where a crest elevation came from. */
 export type HeightSource = 'measured' | 'dem' | 'default' | 'breach';
@@ -152,7 +156,10 @@ export function setupCrest(
   const probeDownM = upCode === LEFT ? probe.rightM : probe.leftM;
 
   // Rule 4: DEM-visible dam.
-  const demVisible = !Number.isNaN(probeDownM) && crestLowM - probeDownM >= params.demVisibleMinM;
+  const demVisible =
+    !Number.isNaN(probeDownM) &&
+    crestLowM - probeDownM >= params.demVisibleMinM &&
+    ridgeHeightM(grid, segs, crestCells, crestLowM, -upCode, params.probeM) >= params.demVisibleMinM;
   const bedElevM = demVisible ? probeDownM : crestLowM;
 
   // Rules 5–7: crest elevation.
@@ -213,6 +220,55 @@ export function setupCrest(
     probeDownM,
     warnings,
   };
+}
+
+/** Crest cells up to this far (m) above the crest's lowest point count as its valley-floor section. */
+const FLOOR_BAND_M = 0.5;
+
+/**
+ * Median, over the crest's valley-floor cells, of the crest cell's elevation
+ * minus the ground `probeM` straight downstream of it (along the local normal
+ * of the crest), in metres; NaN when no such pair exists.
+ */
+function ridgeHeightM(grid: Grid, segs: CrestSegments, crestCells: Int32Array, crestLowM: number, downCode: number, probeM: number): number {
+  const { width, height, transform: t, z } = grid;
+  const crest = new Set<number>(crestCells);
+  const diffs: number[] = [];
+  for (let k = 0; k < crestCells.length; k++) {
+    const i = crestCells[k]!;
+    const zi = z[i]!;
+    if (!(zi <= crestLowM + FLOOR_BAND_M)) continue;
+    const col = i % width;
+    const row = (i - col) / width;
+    const x = colToX(t, col + 0.5);
+    const y = rowToY(t, row + 0.5);
+    const seg = nearestSegment(segs, x, y);
+    if (seg < 0) continue;
+    // The segment's direction in metres on the grid, then its normal in cells.
+    const cellW = grid.cellWidthM[row]!;
+    const cellH = grid.cellHeightM;
+    const ex = ((segs.bx[seg]! - segs.ax[seg]!) / t.dx) * cellW;
+    const ey = ((segs.by[seg]! - segs.ay[seg]!) / t.dy) * cellH;
+    const len = Math.hypot(ex, ey);
+    if (!(len > 0)) continue;
+    const stepC = ((-ey / len) * probeM) / cellW;
+    const stepR = ((ex / len) * probeM) / cellH;
+    for (const sign of [1, -1]) {
+      const c2 = Math.floor(col + 0.5 + sign * stepC);
+      const r2 = Math.floor(row + 0.5 + sign * stepR);
+      if (c2 < 0 || c2 >= width || r2 < 0 || r2 >= height) continue;
+      const j = r2 * width + c2;
+      const zj = z[j]!;
+      if (crest.has(j) || Number.isNaN(zj)) continue;
+      if (sideOf(segs, colToX(t, c2 + 0.5), rowToY(t, r2 + 0.5)) !== downCode) continue;
+      diffs.push(zi - zj);
+      break;
+    }
+  }
+  if (diffs.length === 0) return NaN;
+  diffs.sort((a, b) => a - b);
+  const mid = diffs.length >> 1;
+  return diffs.length % 2 === 1 ? diffs[mid]! : (diffs[mid - 1]! + diffs[mid]!) / 2;
 }
 
 /** Lowest ground on each side of the crest near the bed cell, and the nearest valid cell on each side. */
