@@ -51,6 +51,16 @@ export interface DamResult {
   warnings: string[];
   /** The inventory's other properties, untouched. */
   properties: Record<string, unknown>;
+  /**
+   * Crest location (crest-location.ts): the midpoint along the crest line as
+   * drawn, or the dam point; map x/y in the DEM's CRS units, lon/lat in WGS 84
+   * degrees (null when the CRS cannot be converted). Always written by
+   * estimate; optional so summaries of older runs still read.
+   */
+  crest_x?: number;
+  crest_y?: number;
+  crest_lon?: number | null;
+  crest_lat?: number | null;
 }
 
 export interface Totals {

@@ -11,6 +11,7 @@ import type { DemDescription } from '../io/dem.js';
 import type { EstimateParams, EstimateResult } from './estimate.js';
 import type { DamResult, InputRecord, Totals } from './result.js';
 import { CAUTIONS } from './cautions.js';
+import type { Scenarios } from './scenarios.js';
 
 export const TOOL_NAME = 'pondage';
 
@@ -27,6 +28,8 @@ export interface Summary {
   totals: Totals & { inundated_area_ha: number; inundated_area_acres: number; storage_acre_ft: number };
   dams: DamResult[];
   warnings: { code: string; dam_id: string | null; message: string }[];
+  /** Existing and existing-plus-proposed water surfaces (pipeline/scenarios.ts); absent in older runs. */
+  scenarios?: Scenarios;
 }
 
 /** Builds the summary record of a run. */
@@ -78,5 +81,6 @@ export function buildSummary(args: {
     },
     dams: result.dams,
     warnings: args.warnings.map((w) => ({ code: w.code, dam_id: w.damId ?? null, message: w.message })),
+    ...(result.scenarios ? { scenarios: result.scenarios } : {}),
   };
 }
