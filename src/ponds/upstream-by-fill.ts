@@ -9,6 +9,12 @@
  * crest holds it. The side whose water stands higher is upstream (a tie goes
  * to the side holding more water, and is flagged). The crest's own property
  * (`upstream`) always wins when given.
+ *
+ * The two trial floods are confined to a box reaching DECISION_REACH_M
+ * beyond the crest: downstream, water reaches that box's edge at about the
+ * bed's level, upstream it must first rise by the channel's fall over that
+ * distance (or to the crest). Flooding the whole downstream valley below the
+ * bed, which is all an unconfined downstream flood would do, is avoided.
  */
 import type { Warning } from '../errors.js';
 import type { Grid } from '../grid/grid.js';
@@ -18,6 +24,8 @@ import { fillBehindCrest, type FillOptions, type FillScratch, type PondFill } fr
 import type { PondParams } from './params.js';
 import { pondAt } from './stage-storage.js';
 
+/** Trial floods reach at most this far beyond the crest's extent, metres. */
+export const DECISION_REACH_M = 100;
 /** Two water levels closer than this (m) are a tie. */
 const LEVEL_TIE_M = 1e-6;
 /** Probe codes superseded by the flood's verdict. */
@@ -34,18 +42,20 @@ export function setupAndFill(
 ): { setup: CrestSetup; fill: PondFill } | { skip: Warning } {
   const first = setupCrest(grid, dam, crestCells, params);
   if ('skip' in first) return first;
-  const firstFill = fillBehindCrest(grid, first, fillOptions, scratch);
-  if (first.upstreamSource === 'property' || !first.holdsWater) return { setup: first, fill: firstFill };
-
+  if (first.upstreamSource === 'property' || !first.holdsWater) {
+    return { setup: first, fill: fillBehindCrest(grid, first, fillOptions, scratch) };
+  }
   const other = setupCrest(grid, { ...dam, upstream: first.upstreamSide === 'left' ? 'right' : 'left' }, crestCells, params);
-  if ('skip' in other) return { setup: first, fill: firstFill };
-  const otherFill = fillBehindCrest(grid, other, fillOptions, scratch);
+  if ('skip' in other) return { setup: first, fill: fillBehindCrest(grid, first, fillOptions, scratch) };
 
-  const gap = otherFill.waterLevelM - firstFill.waterLevelM;
+  const trial = { ...fillOptions, reachBox: decisionBox(grid, crestCells, fillOptions.reachBox) };
+  const firstTrial = fillBehindCrest(grid, first, trial, scratch);
+  const otherTrial = fillBehindCrest(grid, other, trial, scratch);
+  const gap = otherTrial.waterLevelM - firstTrial.waterLevelM;
   const tie = Math.abs(gap) <= LEVEL_TIE_M;
-  const otherWins = tie ? pondAt(otherFill, otherFill.waterLevelM).volumeM3 > pondAt(firstFill, firstFill.waterLevelM).volumeM3 : gap > 0;
+  const otherWins = tie ? pondAt(otherTrial, otherTrial.waterLevelM).volumeM3 > pondAt(firstTrial, firstTrial.waterLevelM).volumeM3 : gap > 0;
   const setup = otherWins ? other : first;
-  const fill = otherWins ? otherFill : firstFill;
+  const fill = fillBehindCrest(grid, setup, fillOptions, scratch);
   const warnings = setup.warnings.filter((w) => !PROBE_CODES.has(w.code));
   if (tie) {
     warnings.push({
@@ -55,4 +65,31 @@ export function setupAndFill(
     });
   }
   return { setup: { ...setup, upstreamSource: 'terrain', warnings }, fill };
+}
+
+/** The crest's cell extent grown by DECISION_REACH_M, within the caller's reach box and the grid. */
+function decisionBox(grid: Grid, crestCells: Int32Array, outer: FillOptions['reachBox']): NonNullable<FillOptions['reachBox']> {
+  const { width, height } = grid;
+  let c0 = width;
+  let c1 = 0;
+  let r0 = height;
+  let r1 = 0;
+  for (let k = 0; k < crestCells.length; k++) {
+    const i = crestCells[k]!;
+    const col = i % width;
+    const row = (i - col) / width;
+    if (col < c0) c0 = col;
+    if (col > c1) c1 = col;
+    if (row < r0) r0 = row;
+    if (row > r1) r1 = row;
+  }
+  const midRow = Math.min(height - 1, (r0 + r1) >> 1);
+  const dc = Math.ceil(DECISION_REACH_M / grid.cellWidthM[midRow]!);
+  const dr = Math.ceil(DECISION_REACH_M / grid.cellHeightM);
+  return {
+    col0: Math.max(outer?.col0 ?? 0, c0 - dc),
+    row0: Math.max(outer?.row0 ?? 0, r0 - dr),
+    col1: Math.min(outer?.col1 ?? width, c1 + 1 + dc),
+    row1: Math.min(outer?.row1 ?? height, r1 + 1 + dr),
+  };
 }
