@@ -1,0 +1,53 @@
+/** `pondage demo`: generate the fictional valley, write it as inputs, run the estimate on it. */
+import type { Command } from 'commander';
+import { join } from 'node:path';
+import { generateDemoValley } from '../demo/index.js';
+import { writeSceneInputs } from '../io/write-scene.js';
+import { runEstimate } from '../pipeline/run.js';
+import { addParamOptions, paramsFromFlags, type ParamFlags } from './estimate-command.js';
+import { parseNumber } from './options.js';
+import { progressBar } from './progress.js';
+import { runTable } from './table.js';
+
+interface DemoFlags extends ParamFlags {
+  out: string;
+  seed: string;
+  quiet?: boolean;
+}
+
+export function addDemoCommand(program: Command): void {
+  const cmd = program
+    .command('demo')
+    .description('generate a fictional beaver valley (DEM and dam inventory) and run the estimate on it')
+    .option('--out <dir>', 'folder for the demo inputs and results', 'pondage-demo')
+    .option('--seed <n>', 'seed of the generated valley (the same seed gives the same valley)', '20261201')
+    .option('-q, --quiet', 'print nothing but errors');
+  addParamOptions(cmd).action(async (flags: DemoFlags) => {
+    const seed = parseNumber(flags.seed, '--seed', { integer: true, min: 0, max: 2 ** 32 - 1 });
+    const params = paramsFromFlags(flags);
+    const say = (text: string): void => {
+      if (!flags.quiet) process.stdout.write(text);
+    };
+    say(`generating the fictional valley (seed ${seed})…\n`);
+    const scene = generateDemoValley({ seed });
+    const inputs = await writeSceneInputs(join(flags.out, 'inputs'), scene);
+    say(`wrote ${inputs.demPath} (${scene.width} × ${scene.height} cells of ${scene.cellM} m) and ${inputs.damsPath} (${scene.dams.length} dams)\n\n`);
+    const outDir = join(flags.out, 'results');
+    const bar = progressBar('ponds', flags.quiet ?? false);
+    try {
+      const { summary } = await runEstimate({
+        demPaths: [inputs.demPath],
+        damsPath: inputs.damsPath,
+        outDir,
+        params,
+        ...(bar.onProgress ? { progress: bar.onProgress } : {}),
+      });
+      bar.stop();
+      say(runTable(summary));
+      say(`\nwrote ${outDir}/ (summary.json, dams.csv, ponds.geojson, depth.tif)\n`);
+      say(`the same run by hand: pondage estimate --dem ${inputs.demPath} --dams ${inputs.damsPath} --out ${outDir}\n`);
+    } finally {
+      bar.stop();
+    }
+  });
+}
