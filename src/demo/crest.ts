@@ -59,14 +59,20 @@ const MAX_HALF_LENGTH_M = 600;
 export function drawCrest(dem: CrestDem, req: CrestRequest): CrestLine {
   const nx = -req.ty;
   const ny = req.tx;
+  // The bed is the lowest cell on the line, and the ends depend on the bed. Walking with a bed no
+  // higher than the line's lowest cell is enough; a longer line holds the shorter one's cells, so a
+  // second walk with the first line's lowest cell settles it.
   let bed = lowestNear(dem, req.x, req.y, 3);
   let left = 0;
   let right = 0;
-  for (let pass = 0; pass < 4; pass++) {
+  for (let pass = 0; ; pass++) {
     right = walk(dem, req, nx, ny, 1, bed);
     left = walk(dem, req, nx, ny, -1, bed);
     const lowest = lowestOnLine(dem, req.x - left * nx, req.y - left * ny, req.x + right * nx, req.y + right * ny);
-    if (lowest >= bed) break;
+    if (lowest <= bed || pass === 3) {
+      bed = lowest;
+      break;
+    }
     bed = lowest;
   }
   let a = toMap(dem, req.x - left * nx, req.y - left * ny);
