@@ -5,6 +5,7 @@
 import { Command, CommanderError } from 'commander';
 import { InputError } from '../errors.js';
 import { TOOL_VERSION } from '../pipeline/version.js';
+import { addCompareCommand } from './compare-command.js';
 import { addDemoCommand } from './demo-command.js';
 import { addEstimateCommand } from './estimate-command.js';
 
@@ -22,6 +23,7 @@ export async function main(argv: string[]): Promise<number> {
     .exitOverride();
   addEstimateCommand(program);
   addDemoCommand(program);
+  addCompareCommand(program);
   try {
     await program.parseAsync(argv);
     return EXIT_OK;
