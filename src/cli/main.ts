@@ -8,6 +8,7 @@ import { TOOL_VERSION } from '../pipeline/version.js';
 import { addCompareCommand } from './compare-command.js';
 import { addDemoCommand } from './demo-command.js';
 import { addEstimateCommand } from './estimate-command.js';
+import { addReportCommand } from './report-command.js';
 
 /** Exit codes: 0 success, 1 pondage's own fault, 2 a problem with the inputs or flags. */
 export const EXIT_OK = 0;
@@ -24,6 +25,7 @@ export async function main(argv: string[]): Promise<number> {
   addEstimateCommand(program);
   addDemoCommand(program);
   addCompareCommand(program);
+  addReportCommand(program);
   try {
     await program.parseAsync(argv);
     return EXIT_OK;

@@ -4,6 +4,7 @@
  */
 import { writeFolderAtomically } from '../io/run-folder.js';
 import { writeRunFiles } from '../io/write-run.js';
+import { writeReportFiles } from '../report/write.js';
 import { DEFAULT_POND_PARAMS } from '../ponds/params.js';
 import { DEFAULT_MAX_CREST_LENGTH_M, DEFAULT_SNAP_RADIUS_M } from '../ponds/point-crest.js';
 import { estimatePonds, type EstimateParams, type EstimateResult, type ProgressFn } from './estimate.js';
@@ -57,9 +58,11 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
       result,
       warnings: [...loaded.warnings, ...result.warnings],
     });
-    await writeFolderAtomically(options.outDir, (dir) =>
-      writeRunFiles(dir, { summary, result, demTransform: loaded.dem.transform, demCrs: loaded.dem.crs }),
-    );
+    await writeFolderAtomically(options.outDir, async (dir) => {
+      await writeRunFiles(dir, { summary, result, demTransform: loaded.dem.transform, demCrs: loaded.dem.crs });
+      // Last, so it reads the files above: report-map.json and report.html.
+      await writeReportFiles(dir, { dem: loaded.dem, dams: loaded.dams, outlines: result.outlines });
+    });
     return { summary, result };
   } finally {
     await loaded.dem.close();
