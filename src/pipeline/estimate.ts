@@ -9,7 +9,7 @@
  * It touches no output files and prints nothing: io/write-run.ts writes what
  * this returns, and the CLI reports progress through the callback.
  */
-import type { Warning } from '../errors.js';
+import { InputError, type Warning } from '../errors.js';
 import type { Grid } from '../grid/grid.js';
 import { polygoniseCells } from '../grid/polygonise.js';
 import { rasteriseLines } from '../grid/rasterise-line.js';
@@ -19,7 +19,7 @@ import type { DamInput } from '../inventory.js';
 import type { DemSource } from '../io/dem.js';
 import { combinePonds, type PondLayer } from '../ponds/combine.js';
 import type { CrestSetup } from '../ponds/crest.js';
-import { createFillScratch, type PondFill } from '../ponds/fill.js';
+import { createFillScratch, fillBehindCrest, type PondFill } from '../ponds/fill.js';
 import { setupAndFill } from '../ponds/upstream-by-fill.js';
 import type { PondParams } from '../ponds/params.js';
 import { crestFromPoint } from '../ponds/point-crest.js';
@@ -28,6 +28,8 @@ import type { DamResult, Totals } from './result.js';
 import { clipBox, groupBoxes, unionBox, type CellBox } from './windows.js';
 import { crestLocation } from './crest-location.js';
 import { ScenarioTally, type Scenarios } from './scenarios.js';
+import type { UncertaintyParams } from '../uncertainty/params.js';
+import { createDrawPrep, type DrawInputs, type DrawPrep } from '../uncertainty/prepare.js';
 
 /** Run-level parameters beyond the pond engine's own. */
 export interface EstimateParams {
@@ -40,6 +42,8 @@ export interface EstimateParams {
   maxCrestLengthM: number;
   /** Candidates count in the totals only at or above this confidence (0–1). */
   minConfidence: number;
+  /** Monte Carlo draws and their sources (uncertainty/params.ts); absent or 0 draws: no bands. */
+  uncertainty?: UncertaintyParams;
 }
 
 /** Progress of the long steps, for the CLI's bar. */
@@ -62,6 +66,8 @@ export interface EstimateResult {
   cellsVisited: number;
   /** Existing and existing-plus-proposed water surfaces (scenarios.ts); the totals above are the existing one. */
   scenarios?: Scenarios;
+  /** What the Monte Carlo draws need (fills, error supports, overlapping ponds); null without draws. */
+  drawInputs?: DrawInputs | null;
 }
 
 interface Working {
@@ -93,6 +99,12 @@ export async function estimatePonds(
     return { dam, result, box };
   });
 
+  if (work.length > 0 && work.every((w) => w.box === null)) {
+    throw new InputError(
+      `none of the ${work.length} dams lies on the DEM; the inventory and the DEM do not overlap. ` +
+        'Check the dams\' CRS (--dams-crs for projected coordinates; GeoJSON without it is read as WGS 84 lon/lat) and that the DEM tiles cover the dams',
+    );
+  }
   const groups = groupBoxes(work.map((w) => w.box));
   const outlines: EstimateResult['outlines'] = [];
   let outBox: CellBox | null = null;
@@ -102,27 +114,29 @@ export async function estimatePonds(
   let done = 0;
   let cellsVisited = 0;
   const scenarioTally = new ScenarioTally(work.length);
+  const prep = params.uncertainty && params.uncertainty.draws > 0 ? createDrawPrep(params.uncertainty, params.pond, work.length) : null;
   for (const group of groups) {
     const { box } = group;
     const grid = await dem.readWindow(box.col0, box.row0, box.col1 - box.col0, box.row1 - box.row0);
     const scratch = createFillScratch(grid.width * grid.height);
     for (const k of group.members) {
       const w = work[k]!;
-      floodOne(grid, w, box, params, warnings, scratch);
+      floodOne(grid, w, box, params, warnings, scratch, prep);
       cellsVisited += w.fill?.visitedCount ?? 0;
       progress?.({ stage: 'ponds', done: ++done, total: dams.length });
     }
     combineGroup(grid, group.members.map((k) => work[k]!), box, depth!, outlines, work);
     scenarioTally.addGroup(grid, group.members.map((k) => ({ index: k, result: work[k]!.result, fill: work[k]!.fill })));
+    prep?.addGroup(grid, group.members.map((k) => ({ index: k, dam: work[k]!.dam, inTotals: work[k]!.result.in_totals, setup: work[k]!.setup, fill: work[k]!.fill })));
   }
 
   const results = work.map((w) => w.result);
   const totals = totalsOf(results);
-  return { dams: results, totals, depth, outlines, warnings, cellsVisited, scenarios: scenarioTally.finish(results, totals) };
+  return { dams: results, totals, depth, outlines, warnings, cellsVisited, scenarios: scenarioTally.finish(results, totals), drawInputs: prep?.finish() ?? null };
 }
 
 /** Builds the crest, fills behind it and records the dam's own pond. */
-function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, warnings: Warning[], scratch: ReturnType<typeof createFillScratch>): void {
+function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, warnings: Warning[], scratch: ReturnType<typeof createFillScratch>, prep: DrawPrep | null): void {
   const { dam, result } = w;
   let lines: [number, number][][];
   if (dam.geometry.kind === 'point') {
@@ -152,7 +166,10 @@ function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, 
   const lineDam: DamInput = dam.geometry.kind === 'line' ? dam : { ...dam, geometry: { kind: 'line', lines } };
   const done = setupAndFill(grid, lineDam, crest.cells, params.pond, { reachBox }, scratch);
   if ('skip' in done) return skip(result, warnings, done.skip);
-  const { setup, fill: kept } = done;
+  const { setup } = done;
+  // Draws raise the crest: flood once more, up to the highest level a draw can reach (same pond at the crest).
+  const drawTopM = prep ? prep.floodTopM(dam, setup) : -Infinity;
+  const kept = done.fill.escapeKind === null && drawTopM > done.fill.topLevelM ? fillBehindCrest(grid, setup, { reachBox, maxLevelM: drawTopM }, scratch) : done.fill;
   for (const wn of setup.warnings) note(result, warnings, wn);
   w.setup = setup;
   w.fill = kept;
