@@ -5,6 +5,7 @@
  */
 import type { Warning } from '../errors.js';
 import type { DamStatus } from '../inventory.js';
+import type { Bands } from '../uncertainty/bands.js';
 
 /** How the crest height was decided. */
 export type HeightSource = 'measured' | 'dem' | 'default' | 'breach';
@@ -61,6 +62,8 @@ export interface DamResult {
   crest_y?: number;
   crest_lon?: number | null;
   crest_lat?: number | null;
+  /** Monte Carlo bands of this dam's figures, keyed by the figure's name (uncertainty/bands.ts); absent without draws. */
+  bands?: Bands;
 }
 
 export interface Totals {

@@ -12,6 +12,9 @@ import type { EstimateParams, EstimateResult } from './estimate.js';
 import type { DamResult, InputRecord, Totals } from './result.js';
 import { CAUTIONS } from './cautions.js';
 import type { Scenarios } from './scenarios.js';
+import type { RunDraws } from './draws.js';
+import type { Bands } from '../uncertainty/bands.js';
+import { uncertaintyAssumptions, uncertaintyParameters, type UncertaintySection } from '../uncertainty/describe.js';
 
 export const TOOL_NAME = 'pondage';
 
@@ -25,11 +28,13 @@ export interface Summary {
   parameters: Record<string, number | string>;
   assumptions: string[];
   cautions: string[];
-  totals: Totals & { inundated_area_ha: number; inundated_area_acres: number; storage_acre_ft: number };
+  totals: Totals & { inundated_area_ha: number; inundated_area_acres: number; storage_acre_ft: number; bands?: Bands };
   dams: DamResult[];
   warnings: { code: string; dam_id: string | null; message: string }[];
   /** Existing and existing-plus-proposed water surfaces (pipeline/scenarios.ts); absent in older runs. */
   scenarios?: Scenarios;
+  /** Monte Carlo draws: seed, sources, approximations, Monte Carlo error (uncertainty/describe.ts); absent without draws. */
+  uncertainty?: UncertaintySection;
 }
 
 /** Builds the summary record of a run. */
@@ -45,6 +50,8 @@ export function buildSummary(args: {
   assumptions: string[];
   result: EstimateResult;
   warnings: Warning[];
+  /** The run's Monte Carlo draws (pipeline/draws.ts), or null. */
+  draws?: RunDraws | null;
 }): Summary {
   const { result, params } = args;
   const t = result.totals;
@@ -70,17 +77,20 @@ export function buildSummary(args: {
       snap_radius_m: params.snapRadiusM,
       max_crest_length_m: params.maxCrestLengthM,
       min_confidence: params.minConfidence,
+      ...(params.uncertainty ? uncertaintyParameters(params.uncertainty) : {}),
     },
-    assumptions: args.assumptions,
+    assumptions: params.uncertainty ? [...args.assumptions, ...uncertaintyAssumptions(params.uncertainty)] : args.assumptions,
     cautions: CAUTIONS,
     totals: {
       ...t,
       inundated_area_ha: m2ToHectares(t.inundated_area_m2),
       inundated_area_acres: m2ToAcres(t.inundated_area_m2),
       storage_acre_ft: m3ToAcreFeet(t.storage_m3),
+      ...(args.draws ? { bands: args.draws.totalsBands } : {}),
     },
     dams: result.dams,
     warnings: args.warnings.map((w) => ({ code: w.code, dam_id: w.damId ?? null, message: w.message })),
     ...(result.scenarios ? { scenarios: result.scenarios } : {}),
+    ...(args.draws ? { uncertainty: args.draws.section } : {}),
   };
 }

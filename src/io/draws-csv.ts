@@ -1,0 +1,61 @@
+/**
+ * draws.csv: the per-draw figures behind a run's bands, so that runs can be
+ * differenced draw by draw (paired) and watersheds or scenarios re-summed.
+ *
+ * RFC 4180, one header row, LF line ends (the format `pondage compare`
+ * reads, see compare/draws.ts):
+ *
+ *   draw,scope,id,storage_m3,inundated_area_m2,dams_in_totals,volume_m3,area_m2[,missing_dams,missing_storage_m3,missing_area_m2]
+ *   0,total,,182440.87,559270,485,,
+ *   0,dam,B-0001,,,,312.5,950
+ *   ...
+ *
+ * - `draw` 0 … N−1; rows of draw k come together: the totals row, then one
+ *   row per dam (scope `dam`, id the dam's id, in summary.json's order).
+ * - Totals rows fill the totals' figures; dam rows the dam's own water in
+ *   that draw (`volume_m3`, `area_m2`: 0 when the dam does not count).
+ *   Other cells are empty.
+ * - Numbers are written in full (shortest round-trip form), so a totals
+ *   row equals the sum of its dam rows in file order exactly (plus
+ *   `missing_storage_m3` / `missing_area_m2` when --recall is on).
+ */
+import { writeFile } from 'node:fs/promises';
+import { csvField } from './csv-write.js';
+
+/** What draws.csv holds. Per-dam arrays are dam-major (d·draws + k). */
+export interface DrawsTable {
+  draws: number;
+  damIds: readonly string[];
+  /** Per-draw totals by figure name (storage_m3, inundated_area_m2, dams_in_totals, missing_*). */
+  totals: Record<string, Float64Array>;
+  damVolumeM3: Float64Array;
+  damAreaM2: Float64Array;
+  /** Rows of dams to write (default every dam). */
+  damRows?: readonly number[];
+}
+
+/** The file's text. */
+export function drawsCsv(t: DrawsTable): string {
+  const totalNames = Object.keys(t.totals);
+  const header = ['draw', 'scope', 'id', ...totalNames.slice(0, 3), 'volume_m3', 'area_m2', ...totalNames.slice(3)];
+  const rows = t.damRows ?? t.damIds.map((_, d) => d);
+  const ids = t.damIds.map((id) => csvField(id));
+  const emptyTotals = ','.repeat(3);
+  const emptyTail = ','.repeat(totalNames.length - 3);
+  const lines: string[] = [header.join(',')];
+  const N = t.draws;
+  for (let k = 0; k < N; k++) {
+    const head = totalNames.slice(0, 3).map((n) => String(t.totals[n]![k]!));
+    const tail = totalNames.slice(3).map((n) => String(t.totals[n]![k]!));
+    lines.push(`${k},total,,${head.join(',')},,${tail.length > 0 ? ',' + tail.join(',') : ''}`);
+    for (const d of rows) {
+      lines.push(`${k},dam,${ids[d]!}${emptyTotals},${String(t.damVolumeM3[d * N + k]!)},${String(t.damAreaM2[d * N + k]!)}${emptyTail}`);
+    }
+  }
+  return lines.join('\n') + '\n';
+}
+
+/** Writes draws.csv at `path`. */
+export async function writeDrawsCsv(path: string, t: DrawsTable): Promise<void> {
+  await writeFile(path, drawsCsv(t));
+}

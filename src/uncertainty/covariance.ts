@@ -1,0 +1,227 @@
+/**
+ * The DEM error model: a zero-mean stationary field with a spherical
+ * variogram of sill σ² (σ = RMSEz) and range L, and what it does to a pond.
+ *
+ * Spherical covariance (the standard geostatistical model, e.g. Journel &
+ * Huijbregts 1978, Mining Geostatistics):
+ *   C(h) = σ²·(1 − 3h/(2L) + h³/(2L³)) for h < L, 0 beyond.
+ *
+ * A pond's mean ground error ē over its area A does not shrink as σ²/n as if
+ * cells were independent: Rolstad, Haug & Denby (2009, "Spatially integrated
+ * geodetic glacier mass balance and its uncertainty based on geostatistical
+ * analysis", Journal of Glaciology 55(192)) average the covariance over a
+ * disc of the same area, radius r = √(A/π):
+ *   Var(ē) = σ²·(1 − r/L + r³/(5L³))   for r ≤ L,
+ *   Var(ē) = σ²·πL²/(5A)               for r ≥ L (A ≥ πL²).
+ * (Derived here by integrating C over the disc: (2/r²)∫₀^min(r,L) C(h)·h dh.)
+ *
+ * For a real pond shape the variance of ē and its covariance with other
+ * points and ponds are double sums over the pond's cells, computed here on
+ * blocks: the pond's cells are binned into squares of about L/6 (at most
+ * MAX_BLOCKS per pond), each block stands at its area-weighted centroid with
+ * its water area as weight, and a block's covariance with itself is the
+ * Rolstad average over a disc of the block's area. Positions are in DEM
+ * cells with the dam's own cell size in metres, so geographic DEMs work
+ * (distances between points further apart than the range do not matter).
+ */
+
+/** Spherical covariance at distance hM (m) for sill σ² (m²) and range L (m). */
+export function sphericalCovariance(hM: number, sillM2: number, rangeM: number): number {
+  if (hM >= rangeM) return 0;
+  const u = hM / rangeM;
+  return sillM2 * (1 - 1.5 * u + 0.5 * u * u * u);
+}
+
+/** Spherical semivariogram γ(h) = σ² − C(h), m². */
+export function sphericalSemivariogram(hM: number, sillM2: number, rangeM: number): number {
+  return sillM2 - sphericalCovariance(hM, sillM2, rangeM);
+}
+
+/**
+ * Var(ē)/σ² for the mean over an area A (m²) under a spherical model of
+ * range L (m): Rolstad et al. (2009), see the file comment.
+ */
+export function areaAverageFactor(areaM2: number, rangeM: number): number {
+  if (!(areaM2 > 0)) return 1;
+  if (!(rangeM > 0)) return 0;
+  const r = Math.sqrt(areaM2 / Math.PI);
+  if (r >= rangeM) return (Math.PI * rangeM * rangeM) / (5 * areaM2);
+  const u = r / rangeM;
+  return 1 - u + (u * u * u) / 5;
+}
+
+/** Most blocks a pond is represented by (the double sums cost MAX_BLOCKS² per pond). */
+export const MAX_BLOCKS = 400;
+
+/**
+ * Where a dam's DEM error acts: the reference point whose error shifts the
+ * water level (the bed cell: crest = bed + height, or the crest's lowest DEM
+ * point, which is the same cell) and the pond's blocks. Coordinates are
+ * full-DEM cell positions (column, row of cell centres).
+ */
+export interface ErrorSupport {
+  refCol: number;
+  refRow: number;
+  /** Cell size at the dam, metres. */
+  cellWM: number;
+  cellHM: number;
+  /** Block centroids (cell positions) and weights (water area, m²). */
+  blockCol: Float64Array;
+  blockRow: Float64Array;
+  blockAreaM2: Float64Array;
+  /** Σ block areas, m² (0 for a dry pond: then ē is taken equal to the reference error). */
+  areaM2: number;
+  /** Bounding box of the reference and the blocks, cell positions. */
+  col0: number;
+  col1: number;
+  row0: number;
+  row1: number;
+}
+
+/**
+ * Bins pond cells (flat indices of a window of `width` columns whose cell
+ * (0, 0) is full-DEM cell (colOffset, rowOffset)) into blocks of about
+ * `blockM` metres, doubling the block size until at most MAX_BLOCKS remain.
+ */
+export function buildSupport(args: {
+  cells: Int32Array;
+  width: number;
+  colOffset: number;
+  rowOffset: number;
+  cellAreaM2: Float64Array;
+  refCell: number;
+  cellWM: number;
+  cellHM: number;
+  blockM: number;
+}): ErrorSupport {
+  const { cells, width, colOffset, rowOffset, cellAreaM2, cellWM, cellHM } = args;
+  const refCol = (args.refCell % width) + colOffset;
+  const refRow = Math.floor(args.refCell / width) + rowOffset;
+  let c0 = Infinity;
+  let c1 = -Infinity;
+  let r0 = Infinity;
+  let r1 = -Infinity;
+  for (let k = 0; k < cells.length; k++) {
+    const i = cells[k]!;
+    const col = i % width;
+    const row = (i - col) / width;
+    if (col < c0) c0 = col;
+    if (col > c1) c1 = col;
+    if (row < r0) r0 = row;
+    if (row > r1) r1 = row;
+  }
+  const empty = new Float64Array(0);
+  if (cells.length === 0) {
+    return { refCol, refRow, cellWM, cellHM, blockCol: empty, blockRow: empty, blockAreaM2: empty, areaM2: 0, col0: refCol, col1: refCol, row0: refRow, row1: refRow };
+  }
+  let blockM = args.blockM;
+  for (;;) {
+    const bc = Math.max(1, Math.round(blockM / cellWM));
+    const br = Math.max(1, Math.round(blockM / cellHM));
+    const nbc = Math.floor((c1 - c0) / bc) + 1;
+    const nbr = Math.floor((r1 - r0) / br) + 1;
+    const w = new Float64Array(nbc * nbr);
+    const wc = new Float64Array(nbc * nbr);
+    const wr = new Float64Array(nbc * nbr);
+    for (let k = 0; k < cells.length; k++) {
+      const i = cells[k]!;
+      const col = i % width;
+      const row = (i - col) / width;
+      const b = Math.floor((row - r0) / br) * nbc + Math.floor((col - c0) / bc);
+      const a = cellAreaM2[row]!;
+      w[b]! += a;
+      wc[b]! += a * col;
+      wr[b]! += a * row;
+    }
+    let used = 0;
+    for (let b = 0; b < w.length; b++) if (w[b]! > 0) used++;
+    if (used > MAX_BLOCKS && (bc < c1 - c0 + 1 || br < r1 - r0 + 1)) {
+      blockM *= 2;
+      continue;
+    }
+    const blockCol = new Float64Array(used);
+    const blockRow = new Float64Array(used);
+    const blockAreaM2 = new Float64Array(used);
+    let n = 0;
+    let areaM2 = 0;
+    for (let b = 0; b < w.length; b++) {
+      const wb = w[b]!;
+      if (!(wb > 0)) continue;
+      blockCol[n] = wc[b]! / wb + colOffset;
+      blockRow[n] = wr[b]! / wb + rowOffset;
+      blockAreaM2[n] = wb;
+      areaM2 += wb;
+      n++;
+    }
+    return {
+      refCol,
+      refRow,
+      cellWM,
+      cellHM,
+      blockCol,
+      blockRow,
+      blockAreaM2,
+      areaM2,
+      col0: Math.min(refCol, c0 + colOffset),
+      col1: Math.max(refCol, c1 + colOffset),
+      row0: Math.min(refRow, r0 + rowOffset),
+      row1: Math.max(refRow, r1 + rowOffset),
+    };
+  }
+}
+
+/** Distance in metres between cell positions of two supports (mean cell size of the two). */
+function distM(a: ErrorSupport, colA: number, rowA: number, b: ErrorSupport, colB: number, rowB: number): number {
+  const dx = (colA - colB) * 0.5 * (a.cellWM + b.cellWM);
+  const dy = (rowA - rowB) * 0.5 * (a.cellHM + b.cellHM);
+  return Math.sqrt(dx * dx + dy * dy);
+}
+
+/** Shortest possible distance (m) between the bounding boxes of two supports. */
+export function supportGapM(a: ErrorSupport, b: ErrorSupport): number {
+  const gc = Math.max(0, a.col0 - b.col1, b.col0 - a.col1);
+  const gr = Math.max(0, a.row0 - b.row1, b.row0 - a.row1);
+  return Math.hypot(gc * 0.5 * (a.cellWM + b.cellWM), gr * 0.5 * (a.cellHM + b.cellHM));
+}
+
+/**
+ * Covariances (m²) of the error at two supports' reference points and of
+ * their ponds' mean errors: [ref·ref, refA·pondB, pondA·refB, pondA·pondB].
+ * For a dry pond the pond's mean error is its reference error.
+ */
+export function supportCovariance(a: ErrorSupport, b: ErrorSupport, sillM2: number, rangeM: number, same: boolean): [number, number, number, number] {
+  const rr = sphericalCovariance(distM(a, a.refCol, a.refRow, b, b.refCol, b.refRow), sillM2, rangeM);
+  const rp = b.areaM2 > 0 ? pointToPond(a, a.refCol, a.refRow, b, sillM2, rangeM) : rr;
+  const pr = a.areaM2 > 0 ? pointToPond(b, b.refCol, b.refRow, a, sillM2, rangeM) : rr;
+  let pp: number;
+  if (a.areaM2 > 0 && b.areaM2 > 0) pp = pondToPond(a, b, sillM2, rangeM, same);
+  else if (b.areaM2 > 0) pp = rp;
+  else pp = pr;
+  return [rr, rp, pr, pp];
+}
+
+/** Mean covariance between a point of support `p` and the blocks of `q`. */
+function pointToPond(p: ErrorSupport, col: number, row: number, q: ErrorSupport, sillM2: number, rangeM: number): number {
+  let s = 0;
+  for (let j = 0; j < q.blockAreaM2.length; j++) {
+    s += q.blockAreaM2[j]! * sphericalCovariance(distM(p, col, row, q, q.blockCol[j]!, q.blockRow[j]!), sillM2, rangeM);
+  }
+  return s / q.areaM2;
+}
+
+/** Mean covariance between the blocks of two ponds (a block with itself: the Rolstad disc average). */
+function pondToPond(a: ErrorSupport, b: ErrorSupport, sillM2: number, rangeM: number, same: boolean): number {
+  let s = 0;
+  for (let i = 0; i < a.blockAreaM2.length; i++) {
+    const wi = a.blockAreaM2[i]!;
+    const ci = a.blockCol[i]!;
+    const ri = a.blockRow[i]!;
+    let si = 0;
+    for (let j = 0; j < b.blockAreaM2.length; j++) {
+      const c = same && i === j ? sillM2 * areaAverageFactor(wi, rangeM) : sphericalCovariance(distM(a, ci, ri, b, b.blockCol[j]!, b.blockRow[j]!), sillM2, rangeM);
+      si += b.blockAreaM2[j]! * c;
+    }
+    s += wi * si;
+  }
+  return s / (a.areaM2 * b.areaM2);
+}
