@@ -11,20 +11,18 @@
  * mostly stands clear of the next dam up (spacing ≥ height / slope), then
  * crest lines are drawn on the finished DEM exactly as for the demo.
  */
-import type { DamStatus } from '../inventory.js';
 import type { GeoTransform } from '../grid/transform.js';
-import type { Rng } from '../uncertainty/random.js';
-import { nearestSample, type Channel, type ChannelSpec } from './channel.js';
-import { drawCrest, lowestNear, toMap, type CrestDem } from './crest.js';
-import { countDams, describeChannel, zRange } from './describe.js';
-import { UNMEASURED_REACH_M } from './inventory.js';
+import { nearestSample, type ChannelSpec } from './channel.js';
+import type { CrestDem } from './crest.js';
+import { countDams, describeChannel } from './describe.js';
 import { ENVELOPE, LIDAR_RMSE_M, SIDE_PROFILE, TEXTURE_OCTAVES, DEMO_EPSG } from './layout.js';
 import { buildNetwork, carveBandM, type NetworkEntry } from './network.js';
 import { growNetwork } from './bench-network.js';
 import { splinePath } from './path.js';
 import { STREAM, streamRng } from './seeds.js';
 import { buildTerrain } from './terrain.js';
-import type { DemoDam, DemoDamProperties, DemoScene } from './types.js';
+import type { DemoScene } from './types.js';
+import { placeBenchDams } from './bench-dams.js';
 
 /** Options of `generateBenchScene`. */
 export interface BenchOptions {
@@ -44,15 +42,12 @@ const OUTLET_BED_M = 1420;
 
 /** Valley profile by order (1 trunk, 2, 3, 4). */
 const ORDER_PROFILE = {
-  1: { slopeHead: 0.0055, slopeMouth: 0.003, hwHead: 30, hwMouth: 40, dHead: 0.55, dMouth: 0.75, wHead: 3, wMouth: 4, meander: 440, hMin: 0.3, hMax: 0.8 },
-  2: { slopeHead: 0.015, slopeMouth: 0.008, hwHead: 10, hwMouth: 22, dHead: 0.35, dMouth: 0.55, wHead: 2, wMouth: 3, meander: 200, hMin: 0.4, hMax: 1.4 },
-  3: { slopeHead: 0.02, slopeMouth: 0.012, hwHead: 10, hwMouth: 14, dHead: 0.3, dMouth: 0.4, wHead: 2, wMouth: 2.5, meander: 160, hMin: 0.4, hMax: 1.6 },
-  4: { slopeHead: 0.02, slopeMouth: 0.015, hwHead: 10, hwMouth: 12, dHead: 0.3, dMouth: 0.35, wHead: 2, wMouth: 2.2, meander: 140, hMin: 0.4, hMax: 1.4 },
+  1: { slopeHead: 0.0055, slopeMouth: 0.003, hwHead: 30, hwMouth: 40, dHead: 0.55, dMouth: 0.75, wHead: 3, wMouth: 4, meander: 440 },
+  2: { slopeHead: 0.015, slopeMouth: 0.008, hwHead: 10, hwMouth: 22, dHead: 0.35, dMouth: 0.55, wHead: 2, wMouth: 3, meander: 200 },
+  3: { slopeHead: 0.02, slopeMouth: 0.012, hwHead: 10, hwMouth: 14, dHead: 0.3, dMouth: 0.4, wHead: 2, wMouth: 2.5, meander: 160 },
+  4: { slopeHead: 0.02, slopeMouth: 0.015, hwHead: 10, hwMouth: 12, dHead: 0.3, dMouth: 0.35, wHead: 2, wMouth: 2.2, meander: 140 },
 } as const;
 
-/** Dams keep this far from a valley's mouth and head, metres. */
-const MOUTH_CLEAR_M = 90;
-const HEAD_CLEAR_M = 60;
 
 /** Generates the bench landscape and `damCount` dams on its valley floors. */
 export function generateBenchScene(options: BenchOptions): DemoScene {
@@ -97,7 +92,7 @@ export function generateBenchScene(options: BenchOptions): DemoScene {
   const outlet = { x: wM, y: outletY };
   const top = { baseM: OUTLET_BED_M + 30, gradient: 0.01, ...outlet };
   const channels = buildNetwork(entries, OUTLET_BED_M, SIDE_PROFILE, top);
-  const z = buildTerrain({
+  const { z, zMinM, zMaxM } = buildTerrain({
     width,
     height,
     cellM,
@@ -121,7 +116,7 @@ export function generateBenchScene(options: BenchOptions): DemoScene {
   const described = channels.map((c) => describeChannel(c, transform));
   const counts = countDams(dams);
   const totalKm = described.reduce((a, c) => a + c.lengthM, 0) / 1000;
-  const zr = zRange(z);
+  const zr: [number, number] = [Math.round(zMinM * 100) / 100, Math.round(zMaxM * 100) / 100];
   return {
     width,
     height,
@@ -150,91 +145,5 @@ export function generateBenchScene(options: BenchOptions): DemoScene {
       dams: counts,
       cases: { cascade: [], spill: [], breached: [], proposed: [], candidates: [], points: [], waterSurfaces: [] },
     },
-  };
-}
-
-interface Site {
-  channel: number;
-  k: number;
-  heightM: number;
-}
-
-/** Spaces dams along every valley, then keeps `damCount` of them (seeded). */
-function placeBenchDams(dem: CrestDem, channels: readonly Channel[], damCount: number, rng: Rng): DemoDam[] {
-  let spacing = 1.15;
-  let sites: Site[] = [];
-  for (let attempt = 0; attempt < 12; attempt++) {
-    sites = siteList(channels, spacing, rng);
-    if (sites.length >= damCount) break;
-    spacing *= 0.8;
-  }
-  if (sites.length < damCount) throw new Error(`the bench valleys hold only ${sites.length} dams; ask for fewer or a larger grid`);
-  for (let i = 0; i < damCount; i++) {
-    const j = i + Math.floor(rng() * (sites.length - i));
-    const t = sites[i]!;
-    sites[i] = sites[j]!;
-    sites[j] = t;
-  }
-  const chosen = sites.slice(0, damCount).sort((a, b) => a.channel - b.channel || b.k - a.k);
-  return chosen.map((site, i) => benchDam(dem, channels[site.channel]!, site, i, rng));
-}
-
-function siteList(channels: readonly Channel[], spacing: number, rng: Rng): Site[] {
-  const sites: Site[] = [];
-  channels.forEach((ch, channel) => {
-    const p = ORDER_PROFILE[Math.min(4, ch.spec.order) as 1 | 2 | 3 | 4];
-    const lengthM = (ch.n - 1) * ch.stepM;
-    let fromMouth = MOUTH_CLEAR_M;
-    while (fromMouth < lengthM - HEAD_CLEAR_M) {
-      const k = Math.round((lengthM - fromMouth) / ch.stepM);
-      const heightM = Math.round((p.hMin + (p.hMax - p.hMin) * rng()) * 10) / 10;
-      sites.push({ channel, k, heightM });
-      fromMouth += Math.max(45, (spacing * heightM) / ch.slope[k]!) + 30 * rng();
-    }
-  });
-  return sites;
-}
-
-function benchDam(dem: CrestDem, ch: Channel, site: Site, index: number, rng: Rng): DemoDam {
-  const { k, heightM } = site;
-  const id = `B-${String(index + 1).padStart(4, '0')}`;
-  const tx = ch.tx[k]!;
-  const ty = ch.ty[k]!;
-  const sx = ch.x[k]! - ty * ch.meanderM[k]!;
-  const sy = ch.y[k]! + tx * ch.meanderM[k]!;
-  const draw = rng();
-  const status: DamStatus = draw < 0.02 ? 'breached' : draw < 0.12 ? 'candidate' : 'confirmed';
-  const isPoint = status === 'candidate' && rng() < 0.4;
-  const measured = status === 'confirmed' && rng() < 0.85;
-  const year = rng() < 0.6 ? 2019 : 2024;
-  const properties: DemoDamProperties = {
-    id,
-    ...(measured ? { height_m: heightM } : {}),
-    status,
-    ...(status === 'candidate' ? { confidence: Math.round((0.3 + 0.6 * rng()) * 100) / 100 } : {}),
-    year,
-  };
-  const base = {
-    channelId: ch.spec.id,
-    distanceFromHeadM: k * ch.stepM,
-    heightM,
-    valleyTangent: [tx, -ty] as [number, number],
-    streamPoint: toMap(dem, sx, sy),
-    roles: [],
-  };
-  if (isPoint) {
-    const angle = 2 * Math.PI * rng();
-    const offsetM = 1 + 3 * rng();
-    const [x, y] = toMap(dem, sx + offsetM * Math.cos(angle), sy + offsetM * Math.sin(angle));
-    const bedZM = lowestNear(dem, sx, sy, 2);
-    return { id, geometry: { kind: 'point', x, y }, properties, truth: { ...base, bedZM, crestZM: bedZM + heightM, lineReachM: 0 } };
-  }
-  const reachM = measured ? heightM : Math.max(heightM, UNMEASURED_REACH_M);
-  const crest = drawCrest(dem, { x: sx, y: sy, tx, ty, reachM });
-  return {
-    id,
-    geometry: { kind: 'line', lines: [crest.line] },
-    properties,
-    truth: { ...base, bedZM: crest.bedZM, crestZM: crest.bedZM + heightM, lineReachM: reachM },
   };
 }

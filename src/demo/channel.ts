@@ -83,7 +83,7 @@ export interface Channel {
   readonly reliefM: Float64Array;
   /** Length of the straight part of the hillslope, metres (from the relief and the profile). */
   readonly sideRunM: Float64Array;
-  /** Offset of the stream centre from the axis, metres, positive to the left of the downstream tangent. */
+  /** Offset of the stream centre from the axis, metres, positive to the right looking downstream. */
   readonly meanderM: Float64Array;
   readonly depthM: Float64Array;
   readonly halfWidthM: Float64Array;

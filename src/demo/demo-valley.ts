@@ -65,7 +65,8 @@ export function generateDemoValley(options: DemoValleyOptions = {}): DemoScene {
   const subWatersheds = describeSubWatersheds(byId, terrain.junctionSample, transform);
   const outlet = { x: transform.x0 + terrain.outlet.x, y: transform.y0 - terrain.outlet.y };
   const channels = terrain.channels.map((c) => describeChannel(c, transform));
-  const facts = demoFacts({ seed, width, height, cellM, z: terrain.z, dams, channels, flattened });
+  const range = options.waterSurfaces ? zRange(terrain.z) : terrain.zRangeM;
+  const facts = demoFacts({ seed, width, height, cellM, zRangeM: range, dams, channels, flattened });
   return { width, height, cellM, transform, epsg: DEMO_EPSG, seed, z: terrain.z, dams, channels, outlet, subWatersheds, facts };
 }
 
@@ -96,7 +97,7 @@ function demoFacts(s: {
   width: number;
   height: number;
   cellM: number;
-  z: Float32Array;
+  zRangeM: [number, number];
   dams: DemoDam[];
   channels: DemoScene['channels'];
   flattened: string[];
@@ -106,7 +107,7 @@ function demoFacts(s: {
   const lower = idsWhere(s.dams, hasRole('cascade-lower'));
   const drowned = idsWhere(s.dams, hasRole('cascade-drowned'));
   const cascade = lower.map((id, i) => ({ lower: id, drowned: drowned[i] ?? '' }));
-  const z = zRange(s.z);
+  const z = s.zRangeM.map((v) => Math.round(v * 100) / 100) as [number, number];
   const extent = { x: s.width * s.cellM, y: s.height * s.cellM };
   const channels = s.channels.map((c) => ({ id: c.id, name: c.name, lengthM: c.lengthM, slopePct: c.slopePct, floorWidthM: c.floorWidthM }));
   const total = channels.reduce((a, c) => a + c.lengthM, 0);

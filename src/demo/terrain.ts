@@ -7,13 +7,15 @@
  *   4. hillslope texture: multi-octave value noise (non-negative, so it only
  *      adds bumps) summed on a 10 m lattice, faded to zero at the foot of the
  *      hillslopes so floors stay smooth;
- *   5. lidar-like random error on every cell.
+ *   5. lidar-like random error on every cell (normal, from the quantile
+ *      table of lattice.ts).
+ * Steps 3–5 run in one pass over the grid, which also finds the range.
  */
 import type { Rng } from '../uncertainty/random.js';
 import type { Channel, SideProfile } from './channel.js';
 import { envelopeLattice, type EnvelopeParams } from './envelope.js';
 import { BandBuffers, carveStretch } from './field.js';
-import { addGaussianNoise, LatticeSampler, makeLattice, randomLattice, type Lattice } from './lattice.js';
+import { LatticeSampler, makeLattice, normalTable, randomLattice, type Lattice } from './lattice.js';
 
 /** Which grid edge the outlet is on, and where along it (metres from the edge's start, i.e. the west or north end). */
 export interface OutletSpec {
@@ -49,8 +51,17 @@ export interface TerrainSpec {
   lidarRng: Rng;
 }
 
-/** The DEM (metres, row-major) for `spec`; no NoData. */
-export function buildTerrain(spec: TerrainSpec): Float32Array {
+/** A built DEM. */
+export interface BuiltTerrain {
+  /** Elevation, metres, row-major; no NoData. */
+  z: Float32Array;
+  /** Lowest and highest elevation, metres. */
+  zMinM: number;
+  zMaxM: number;
+}
+
+/** The DEM for `spec`. */
+export function buildTerrain(spec: TerrainSpec): BuiltTerrain {
   const { width, height, cellM } = spec;
   const z = new Float32Array(width * height);
   const slopeRunM = new Float32Array(width * height).fill(1e6);
@@ -67,12 +78,11 @@ export function buildTerrain(spec: TerrainSpec): Float32Array {
     }
   }
 
-  addRimAndTexture(spec, z, slopeRunM);
-  addGaussianNoise(z, spec.lidarSigmaM, spec.lidarRng);
-  return z;
+  return { z, ...finish(spec, z, slopeRunM) };
 }
 
-function addRimAndTexture(spec: TerrainSpec, z: Float32Array, slopeRunM: Float32Array): void {
+/** Adds the rim, the texture and the lidar error in one pass; returns the elevation range. */
+function finish(spec: TerrainSpec, z: Float32Array, slopeRunM: Float32Array): { zMinM: number; zMaxM: number } {
   const { width, height, cellM, rimM, rimWidthM, outlet } = spec;
   const edgeRise = (distM: number): number => (distM < rimWidthM ? rimM * (1 - distM / rimWidthM) ** 2 : 0);
   const gap = (alongM: number): number => {
@@ -93,6 +103,12 @@ function addRimAndTexture(spec: TerrainSpec, z: Float32Array, slopeRunM: Float32
   const texture = new LatticeSampler(textureLattice(spec), width, false);
   const textureRow = new Float32Array(width);
   const fade = spec.textureFadeM;
+  const normal = normalTable();
+  const sigma = spec.lidarSigmaM;
+  const rng = spec.lidarRng;
+  let spare = -1;
+  let lo = Infinity;
+  let hi = -Infinity;
   for (let r = 0; r < height; r++) {
     const y = (r + 0.5) * cellM;
     const north = edgeRise(y);
@@ -107,9 +123,23 @@ function addRimAndTexture(spec: TerrainSpec, z: Float32Array, slopeRunM: Float32
       const t = slopeRunM[i]! / fade;
       const w = t >= 1 ? 1 : t * t * (3 - 2 * t);
       const rim = westCol[c]! * westTaper + eastCol[c]! * eastTaper + north * northTaper[c]! + south * southTaper[c]!;
-      z[i] = z[i]! + rim + w * textureRow[c]!;
+      // One 32-bit draw gives two 16-bit indices into the normal table.
+      let index: number;
+      if (spare < 0) {
+        const bits = Math.floor(rng() * 4294967296);
+        index = bits & 0xffff;
+        spare = bits >>> 16;
+      } else {
+        index = spare;
+        spare = -1;
+      }
+      const v = Math.fround(z[i]! + rim + w * textureRow[c]! + sigma * normal[index]!);
+      z[i] = v;
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
     }
   }
+  return { zMinM: lo, zMaxM: hi };
 }
 
 /** Spacing of the lattice the texture octaves are summed on, metres (a fifth of the shortest wavelength keeps it smooth). */

@@ -23,6 +23,8 @@ export interface DemoTerrain {
   channels: Channel[];
   /** Elevation, metres, row-major. */
   z: Float32Array;
+  /** Lowest and highest elevation, metres. */
+  zRangeM: [number, number];
   /** Outlet: where the main stem leaves the grid, internal metres (x east, y south of the upper-left corner). */
   outlet: { x: number; y: number };
   /** Main-stem sample where each tributary joins, by tributary id. */
@@ -72,7 +74,7 @@ export function buildDemoTerrain(seed: number, width: number, height: number, ce
   const outlet = { x: mainPath.x[mainPath.n - 1]!, y: mainPath.y[mainPath.n - 1]! };
   const top = { baseM: DEMO_OUTLET_BED_M + DEMO_TOP.aboveOutletM, gradient: DEMO_TOP.gradient, ...outlet };
   const channels = buildNetwork(entries, DEMO_OUTLET_BED_M, SIDE_PROFILE, top);
-  const z = buildTerrain({
+  const built = buildTerrain({
     width,
     height,
     cellM,
@@ -90,7 +92,7 @@ export function buildDemoTerrain(seed: number, width: number, height: number, ce
     noiseRng: streamRng(seed, STREAM.hillNoise),
     lidarRng: streamRng(seed, STREAM.lidarNoise),
   });
-  return { channels, z, outlet, junctionSample };
+  return { channels, z: built.z, zRangeM: [built.zMinM, built.zMaxM], outlet, junctionSample };
 }
 
 /**
