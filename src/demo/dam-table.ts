@@ -40,6 +40,7 @@ export interface DemoDamRow {
 /** Valley lengths the `fromMouthM` figures were laid out on (default grid), metres. */
 export const LAYOUT_LENGTH_M = { MS: 1764, TA: 838, TB: 840 } as const;
 
+/** The demo's dams, per valley from the mouth up; ids number upstream. */
 export const DEMO_DAM_ROWS: readonly DemoDamRow[] = [
   { id: 'MS-01', channel: 'MS', fromMouthM: 90, kind: 'line', status: 'confirmed', heightM: 0.6, measured: true, confidence: 1, year: 2019, observer: 'K.R.', wet: true },
   { id: 'MS-02', channel: 'MS', fromMouthM: 180, kind: 'point', status: 'candidate', heightM: 0.5, measured: false, confidence: 0.41, year: 2024, roles: ['detector-point'] },

@@ -18,6 +18,11 @@
  * that lateral distance. Past the head the valley closes in a rounded head
  * (radial distance, no stream); past the outlet it runs on straight; past any
  * other stretch end the cell is left to the next stretch or the parent valley.
+ *
+ * Known limit: inside a bend tighter than the band, the nearest axis point
+ * jumps where the cell is equidistant from both arms, and the surface can step
+ * there by the floor's fall between them (about a metre on a spur ridge, far
+ * above any floor).
  */
 import { distanceTransform } from '../grid/distance.js';
 import type { Channel, SideProfile } from './channel.js';

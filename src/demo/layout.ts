@@ -127,6 +127,7 @@ export const TEXTURE_OCTAVES = [
  */
 export const LIDAR_RMSE_M = 0.1;
 
-/** North-up UTM grid of the demo: EPSG:32612 (WGS 84 / UTM zone 12N), upper-left corner in metres. */
+/** CRS of the demo and bench grids: EPSG:32612 (WGS 84 / UTM zone 12N, metres). */
 export const DEMO_EPSG = 32612;
+/** Upper-left corner of the demo grid, EPSG:32612 metres (an arbitrary, sparsely settled spot; no place is meant). */
 export const DEMO_ORIGIN = { x0: 318000, y0: 4974000 } as const;
