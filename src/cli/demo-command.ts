@@ -4,6 +4,7 @@ import { join } from 'node:path';
 import { generateDemoValley } from '../demo/index.js';
 import { writeSceneInputs } from '../io/write-scene.js';
 import { runEstimate } from '../pipeline/run.js';
+import { runDemoSurveys } from './demo-compare.js';
 import { addParamOptions, paramsFromFlags, type ParamFlags } from './estimate-command.js';
 import { parseNumber } from './options.js';
 import { progressBar } from './progress.js';
@@ -46,6 +47,7 @@ export function addDemoCommand(program: Command): void {
       say(runTable(summary));
       say(`\nwrote ${outDir}/ (summary.json, dams.csv, ponds.geojson, depth.tif)\n`);
       say(`the same run by hand: pondage estimate --dem ${inputs.demPath} --dams ${inputs.damsPath} --out ${outDir}\n`);
+      await runDemoSurveys({ scene, demPath: inputs.demPath, inputsDir: join(flags.out, 'inputs'), demoDir: flags.out, laterRunDir: outDir, params, say });
     } finally {
       bar.stop();
     }

@@ -96,14 +96,19 @@ export function normaliseRun(run: RunRecord): RunNormalised {
   const missing: string[] = [];
   if (streamM === null) missing.push('stream lengths');
   if (valleyM2 === null) missing.push('valley-bottom areas');
-  if (run.totals.influence_area_m2 === null) missing.push('the influence area');
+  if (run.totals.influence_area_m2 === null) missing.push('influence area');
   const available = missing.length === 0;
   return {
     available,
     note: available
       ? 'Per km of stream and per km² of valley bottom, from the run’s watersheds.'
-      : `Not available for ${run.label}: the run reports no ${missing.join(', no ')} (they come with watersheds and the influence zone); ${total.storage_per_stream_km_m3 !== null || total.storage_per_valley_bottom_km2_m3 !== null ? 'the figures it can give are shown' : 'rerun the estimate with watersheds'}.`,
+      : `Not available for ${run.label}: the run reports no ${listOf(missing)} (they come with watersheds and the influence zone); ${total.storage_per_stream_km_m3 !== null || total.storage_per_valley_bottom_km2_m3 !== null ? 'the figures it can give are shown' : 'rerun the estimate with watersheds'}.`,
     total,
     watersheds,
   };
+}
+
+/** "a", "a or b", "a, b or c". */
+function listOf(items: readonly string[]): string {
+  return items.length <= 1 ? (items[0] ?? '') : `${items.slice(0, -1).join(', ')} or ${items[items.length - 1]!}`;
 }

@@ -44,8 +44,56 @@ export function classesPng(img: { width: number; height: number; classes: Uint8A
   return encode({ width: img.width, height: img.height, data, channels: 4, depth: 8 });
 }
 
-/** The change map SVG; `unitM` is metres per map unit of the rasters' CRS (null: no scale bar). */
-export function changeMapSvg(raster: ChangeRaster, dams: readonly DamChange[], unitM: number | null): string {
+/**
+ * The part of the raster worth drawing: the box holding every wet cell and
+ * every dam, grown by a tenth of its size (at least MAP_MARGIN_CELLS) and
+ * clipped to the raster. The whole raster when nothing is in it.
+ */
+export function cropToContent(raster: ChangeRaster, dams: readonly DamChange[]): ChangeRaster {
+  const { width, height, classes, transform: t } = raster;
+  let c0 = width;
+  let c1 = -1;
+  let r0 = height;
+  let r1 = -1;
+  for (let row = 0; row < height; row++) {
+    const base = row * width;
+    for (let col = 0; col < width; col++) {
+      if (classes[base + col] === 0) continue;
+      if (col < c0) c0 = col;
+      if (col > c1) c1 = col;
+      if (row < r0) r0 = row;
+      if (row > r1) r1 = row;
+    }
+  }
+  for (const d of dams) {
+    if (d.crest_x === null || d.crest_y === null) continue;
+    const col = Math.floor((d.crest_x - t.x0) / t.dx);
+    const row = Math.floor((d.crest_y - t.y0) / t.dy);
+    if (col < 0 || row < 0 || col >= width || row >= height) continue;
+    c0 = Math.min(c0, col);
+    c1 = Math.max(c1, col);
+    r0 = Math.min(r0, row);
+    r1 = Math.max(r1, row);
+  }
+  if (c1 < c0 || r1 < r0) return raster;
+  const pad = Math.max(MAP_MARGIN_CELLS, Math.ceil(0.1 * Math.max(c1 - c0, r1 - r0)));
+  c0 = Math.max(0, c0 - pad);
+  r0 = Math.max(0, r0 - pad);
+  c1 = Math.min(width - 1, c1 + pad);
+  r1 = Math.min(height - 1, r1 + pad);
+  const w = c1 - c0 + 1;
+  const h = r1 - r0 + 1;
+  const out = new Uint8Array(w * h);
+  for (let row = 0; row < h; row++) out.set(classes.subarray((row + r0) * width + c0, (row + r0) * width + c0 + w), row * w);
+  return { width: w, height: h, transform: { x0: t.x0 + c0 * t.dx, y0: t.y0 + r0 * t.dy, dx: t.dx, dy: t.dy }, classes: out };
+}
+
+/** Cells of margin kept around the drawn content, at least. */
+export const MAP_MARGIN_CELLS = 20;
+
+/** The change map SVG, cropped to its content; `unitM` is metres per map unit of the rasters' CRS (null: no scale bar). */
+export function changeMapSvg(full: ChangeRaster, dams: readonly DamChange[], unitM: number | null): string {
+  const raster = cropToContent(full, dams);
   const img = reduceClasses(raster);
   const png = Buffer.from(classesPng(img)).toString('base64');
   const { width: w, height: h, factor } = img;

@@ -9,7 +9,7 @@ import type { ChangeRaster } from '../change-map.js';
 import type { Comparison, RunOverview } from '../compare.js';
 import { DEFAULT_DEM_RMSE_M } from '../lod.js';
 import type { DamChangeClass } from '../match.js';
-import { changeMapSvg, classLegend } from './map.js';
+import { changeMapSvg, classLegend, cropToContent } from './map.js';
 import { BAR, DAM_MARK } from './palette.js';
 import { barChart, fmt, fmtSigned, type Bar } from './svg.js';
 
@@ -126,7 +126,7 @@ export function compareView(c: Comparison, raster: ChangeRaster | null, unitM: n
     proposedBars.push({ label: `${r.label} + proposed`, value: r.proposed.with_proposed.storage_m3, band: bw ? { lo: bw.p05, hi: bw.p95 } : null, colour: BAR.proposed });
   }
 
-  const map = raster ? { svg: changeMapSvg(raster, c.dams, unitM), legend: classLegend(), dams: classes.map((k) => ({ name: DAM_MARK[k].label, colour: DAM_MARK[k].colour, shape: DAM_MARK[k].shape })), caption: mapCaption(c, raster) } : null;
+  const map = raster ? { svg: changeMapSvg(raster, c.dams, unitM), legend: classLegend(), dams: classes.map((k) => ({ name: DAM_MARK[k].label, colour: DAM_MARK[k].colour, shape: DAM_MARK[k].shape })), caption: mapCaption(c, cropToContent(raster, c.dams)) } : null;
 
   return {
     title: `pondage comparison: ${from} → ${to}`,
