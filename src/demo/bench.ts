@@ -14,7 +14,7 @@
 import type { GeoTransform } from '../grid/transform.js';
 import { nearestSample, type ChannelSpec } from './channel.js';
 import type { CrestDem } from './crest.js';
-import { countDams, describeChannel } from './describe.js';
+import { countDams, describeChannel, idsWhere } from './describe.js';
 import { ENVELOPE, LIDAR_RMSE_M, SIDE_PROFILE, TEXTURE_OCTAVES, DEMO_EPSG } from './layout.js';
 import { buildNetwork, carveBandM, type NetworkEntry } from './network.js';
 import { growNetwork } from './bench-network.js';
@@ -143,7 +143,15 @@ export function generateBenchScene(options: BenchOptions): DemoScene {
       lidarRmseSource: 'USGS Lidar Base Specification (Techniques and Methods 11-B4), quality level 2: 10 cm RMSEz',
       channels: described.map((c) => ({ id: c.id, name: c.name, lengthM: c.lengthM, slopePct: c.slopePct, floorWidthM: c.floorWidthM })),
       dams: counts,
-      cases: { cascade: [], spill: [], breached: [], proposed: [], candidates: [], points: [], waterSurfaces: [] },
+      cases: {
+        cascade: [],
+        spill: [],
+        breached: idsWhere(dams, (d) => d.properties.status === 'breached'),
+        proposed: [],
+        candidates: idsWhere(dams, (d) => d.properties.status === 'candidate'),
+        points: idsWhere(dams, (d) => d.geometry.kind === 'point'),
+        waterSurfaces: [],
+      },
     },
   };
 }

@@ -112,7 +112,7 @@ export interface DemoFacts {
     unmeasuredHeights: number;
     byYear: Record<string, number>;
   };
-  /** Ids of the dams that show one behaviour each (empty for the bench). */
+  /** Ids of the dams that show one behaviour each (the bench has no cascade, spill, proposed or water cases). */
   cases: {
     cascade: { lower: string; drowned: string }[];
     spill: string[];

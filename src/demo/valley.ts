@@ -96,8 +96,9 @@ export function buildDemoTerrain(seed: number, width: number, height: number, ce
 }
 
 /**
- * Moves an interior control point up to 15 m (seeded), so different seeds
- * give different valleys. The main stem's last point stays on the east edge.
+ * Moves a control point by up to 15 m each way (seeded), so different seeds
+ * give different valleys. Main-stem points move only north–south, so its
+ * last point stays on the east edge.
  */
 function jitter(p: [number, number], rng: Rng, keepX: boolean): [number, number] {
   const dx = (rng() - 0.5) * 30;
