@@ -147,12 +147,19 @@ describe('matching and classing between surveys', () => {
 
 describe('runs on different DEMs', () => {
   it('reports the DEM-difference level of detection LoD95 = 1.96·√(σ₁² + σ₂²)', async () => {
+    // The second run as an older run would be: no DEM RMSE stated, so QL2's 0.10 m is assumed.
+    const summaryPath = join(runs['otherDem']!.runDir, 'summary.json');
+    const s = JSON.parse(await readFile(summaryPath, 'utf8')) as { parameters: Record<string, unknown> };
+    delete s.parameters['dem_rmse_m'];
+    await writeFile(summaryPath, JSON.stringify(s));
     const c = await compare(['y1', 'otherDem'], 'cmp-dem');
     expect(c.dem_difference.same_dem).toBe(false);
-    // No DEM RMSE in the runs: QL2's 0.10 m each (USGS Lidar Base Specification), so
-    // LoD95 = 1.96·√(0.01 + 0.01) = 0.277186 m (Lane et al. 2003; Brasington et al. 2003).
+    expect(c.dem_difference.sigma_to_source).toMatch(/QL2/);
+    expect(c.dem_difference.sigma_to_m).toBe(0.1);
+    // The first run states 0.10 m, or states nothing and QL2's 0.10 m is assumed (USGS Lidar
+    // Base Specification), so LoD95 = 1.96·√(0.01 + 0.01) = 0.277186 m (Lane et al. 2003; Brasington et al. 2003).
+    expect(c.dem_difference.sigma_from_m).toBe(0.1);
     expect(c.dem_difference.lod95_m!).toBeCloseTo(0.277186, 6);
-    expect(c.dem_difference.sigma_from_source).toMatch(/QL2/);
     const c2 = await compare(['y1', 'otherDem'], 'cmp-dem2', { demRmseM: [0.05, 0.15] });
     expect(c2.dem_difference.lod95_m!).toBeCloseTo(lod95M(0.05, 0.15), 12);
     expect(c2.dem_difference.sigma_to_source).toBe('option');
@@ -172,8 +179,13 @@ describe('bands from per-draw files', () => {
   // shared by both runs (draw k of each saw the same field) plus a little of each run's own.
   async function writeDraws(runName: string, shared: Float64Array, own: Float64Array, base: number, seed: number): Promise<void> {
     const runDir = runs[runName]!.runDir;
-    const lines = ['draw,scope,id,storage_m3,inundated_area_m2'];
-    for (let k = 0; k < shared.length; k++) lines.push(`${k},total,,${base + shared[k]! + own[k]!},${1000 + shared[k]!}`);
+    const lines = ['draw,scope,id,storage_m3,inundated_area_m2,volume_m3'];
+    const dams = runs[runName]!.summary.dams;
+    for (let k = 0; k < shared.length; k++) {
+      lines.push(`${k},total,,${base + shared[k]! + own[k]!},${1000 + shared[k]!},`);
+      // Each dam takes its share of the draw's errors.
+      for (const d of dams) lines.push(`${k},dam,${d.id},,,${d.volume_m3 + ((shared[k]! + own[k]!) * d.volume_m3) / base}`);
+    }
     await writeFile(join(runDir, 'draws.csv'), lines.join('\n') + '\n');
     const summaryPath = join(runDir, 'summary.json');
     const s = JSON.parse(await readFile(summaryPath, 'utf8')) as { parameters: Record<string, unknown> };
@@ -214,6 +226,16 @@ describe('bands from per-draw files', () => {
     // (V = M·H³/(3S) ≈ 42 m³ at H = 0.5 m) is smaller than the DEM error the runs do not share.
     expect(vB - vA).toBeLessThan(94);
     expect(indep.totals.detectable['storage_change_m3']).toBe(false);
+    // Per dam too: the persisting dam's paired band is narrower than its independent one,
+    // and the new dam's band is its own draws against zero.
+    const width = (c: Comparison, id: string): number => {
+      const b = c.dams.find((d) => d.id === id)!.volume_change_band!;
+      return b.p95 - b.p05;
+    };
+    expect(width(paired, 'a')).toBeLessThan(width(indep, 'a') / 3);
+    const newBand = paired.dams.find((d) => d.id === 'new1')!.volume_change_band!;
+    expect(newBand.p05).toBeLessThan(dam('add', 'new1').volume_m3);
+    expect(newBand.p95).toBeGreaterThan(dam('add', 'new1').volume_m3);
     for (const name of ['y1', 'add']) await rm(join(runs[name]!.runDir, 'draws.csv'));
   });
 });

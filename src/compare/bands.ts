@@ -24,8 +24,11 @@ import type { BandStats } from './run-record.js';
 /** How a change's band was made. */
 export type BandMethod = 'paired' | 'independent' | 'quadrature' | 'none';
 
-/** Largest number of draw pairs differenced for independent bands (all pairs below it). */
+/** Largest number of draw pairs differenced for independent bands of totals and watersheds (all pairs below it). */
 export const MAX_PAIRS = 1_000_000;
+
+/** The same for each dam's band (many dams: a smaller sample each). */
+export const MAX_PAIRS_PER_DAM = 20_000;
 
 /** Seed of the pair sample taken above MAX_PAIRS (fixed, so outputs repeat). */
 const PAIR_SAMPLE_SEED = 20_030_101;
@@ -56,11 +59,14 @@ export function pairedDifferenceBand(a: Float64Array, b: Float64Array): BandStat
   return bandOf(d);
 }
 
-/** Band of B − A for independent draws: every pair (j, k) gives B_k − A_j (a seeded sample above MAX_PAIRS). */
-export function independentDifferenceBand(a: Float64Array, b: Float64Array): BandStats {
+/**
+ * Band of B − A for independent draws: every pair (j, k) gives B_k − A_j (a
+ * seeded sample of `maxPairs` pairs above that many).
+ */
+export function independentDifferenceBand(a: Float64Array, b: Float64Array, maxPairs: number = MAX_PAIRS): BandStats {
   const na = a.length;
   const nb = b.length;
-  if (na * nb <= MAX_PAIRS) {
+  if (na * nb <= maxPairs) {
     const d = new Float64Array(na * nb);
     let i = 0;
     for (let j = 0; j < na; j++) {
@@ -70,8 +76,8 @@ export function independentDifferenceBand(a: Float64Array, b: Float64Array): Ban
     return bandOf(d);
   }
   const rng = createRng(PAIR_SAMPLE_SEED);
-  const d = new Float64Array(MAX_PAIRS);
-  for (let i = 0; i < MAX_PAIRS; i++) d[i] = b[Math.floor(rng() * nb)]! - a[Math.floor(rng() * na)]!;
+  const d = new Float64Array(maxPairs);
+  for (let i = 0; i < maxPairs; i++) d[i] = b[Math.floor(rng() * nb)]! - a[Math.floor(rng() * na)]!;
   return bandOf(d);
 }
 

@@ -10,6 +10,7 @@
  */
 import { m2ToAcres, m2ToHectares, m3ToAcreFeet } from '../units.js';
 import {
+  MAX_PAIRS_PER_DAM,
   excludesZero,
   independentDifferenceBand,
   pairedDifferenceBand,
@@ -95,6 +96,10 @@ export interface DamChange {
   area_change_m2: number;
   drowned_by_from: string | null;
   drowned_by_to: string | null;
+  /** Band of volume_change_m3 from the runs' per-draw dam figures (null without them). */
+  volume_change_band: BandStats | null;
+  /** Whether that band excludes zero (null: no band). */
+  volume_change_detectable: boolean | null;
   crest_lon: number | null;
   crest_lat: number | null;
   /** Crest in the later run's DEM CRS (else the earlier's), map units. */
@@ -294,6 +299,7 @@ function comparePair(
   const { matches, notes: matchNotes } = matchDams(ra.dams, rb.dams, { sharedCrsUnitM: shared }, matchOptions);
   notes.push(...matchNotes);
 
+  const pairInfo = pairing(a, b);
   const counts: Record<DamChangeClass, number> = { new: 0, gone: 0, persisting: 0, changed: 0 };
   const dams: DamChange[] = [];
   let storageByDams = 0;
@@ -309,6 +315,7 @@ function comparePair(
     storageByDams += vTo - vFrom;
     areaByDams += aTo - aFrom;
     const crest = db?.crest ?? da?.crest ?? null;
+    const band = damChangeBand(a.draws, da?.id ?? null, b.draws, db?.id ?? null, pairInfo.paired);
     dams.push({
       id: (db ?? da)!.id,
       change: m.change,
@@ -329,6 +336,8 @@ function comparePair(
       area_change_m2: aTo - aFrom,
       drowned_by_from: da?.drowned_by ?? null,
       drowned_by_to: db?.drowned_by ?? null,
+      volume_change_band: band,
+      volume_change_detectable: band ? excludesZero(band) : null,
       crest_lon: crest?.lon ?? null,
       crest_lat: crest?.lat ?? null,
       crest_x: crest?.x ?? null,
@@ -348,7 +357,6 @@ function comparePair(
   }
   const influenceChange = ra.totals.influence_area_m2 !== null && rb.totals.influence_area_m2 !== null ? rb.totals.influence_area_m2 - ra.totals.influence_area_m2 : null;
 
-  const pairInfo = pairing(a, b);
   const totalBands = changeBands(a, b, 'total', '', ra.totals.bands, rb.totals.bands, { storage_m3: true, inundated_area_m2: true, influence_area_m2: influenceChange !== null }, pairInfo.paired);
   const methodsUsed = new Set(Object.values(totalBands.band_methods).filter((m) => m !== 'none'));
   const bandsNote =
@@ -395,6 +403,19 @@ function comparePair(
     },
     raster: map.available ? map.raster : null,
   };
+}
+
+/**
+ * Band of a dam's change from the per-draw dam rows (`volume_m3`: the water
+ * the dam counts in each draw). A dam missing from one run counts zero
+ * there; without both runs' draws there is no band.
+ */
+function damChangeBand(drawsA: DrawTable | null, idA: string | null, drawsB: DrawTable | null, idB: string | null, paired: boolean): BandStats | null {
+  if (!drawsA || !drawsB) return null;
+  const sa = idA === null ? new Float64Array(drawsA.count) : drawSeries(drawsA, 'dam', idA, 'volume_m3');
+  const sb = idB === null ? new Float64Array(drawsB.count) : drawSeries(drawsB, 'dam', idB, 'volume_m3');
+  if (!sa || !sb || sa.length === 0 || sb.length === 0) return null;
+  return paired && sa.length === sb.length ? pairedDifferenceBand(sa, sb) : independentDifferenceBand(sa, sb, MAX_PAIRS_PER_DAM);
 }
 
 /** Per-watershed changes, matched by watershed id. */

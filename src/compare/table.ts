@@ -101,6 +101,9 @@ function pairRows(p: PairComparison): Row[] {
       inundated_area_to_m2: r(d.area_to_m2, 2),
       inundated_area_change_m2: r(d.area_change_m2, 2),
       inundated_area_change_acres: r(m2ToAcres(d.area_change_m2), 5),
+      storage_change_p05_m3: r(d.volume_change_band?.p05 ?? null, 3),
+      storage_change_p95_m3: r(d.volume_change_band?.p95 ?? null, 3),
+      storage_change_detectable: d.volume_change_detectable,
       crest_lon: d.crest_lon,
       crest_lat: d.crest_lat,
     });

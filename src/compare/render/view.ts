@@ -40,7 +40,8 @@ export interface CompareView {
     drowned: { id: string; by: string; before: string; after: string }[];
     leftOut: { id: string; reason: string }[];
   }[];
-  dams: { id: string; change: string; changeClass: string; matched: string; reasons: string; status: string; height: string; volume: string; delta: string }[];
+  dams: { id: string; change: string; changeClass: string; matched: string; reasons: string; status: string; height: string; volume: string; delta: string; band: string }[];
+  damBands: boolean;
   lod: string;
   method: string[];
   notes: string[];
@@ -51,7 +52,7 @@ export interface CompareView {
 const dash = '–';
 
 function bandText(b: BandStats | undefined, digits: number, unit: string): string {
-  return b ? `${fmtSigned(b.p05, digits)} to ${fmtSigned(b.p95, digits)} ${unit}` : 'no band';
+  return b ? `${fmtSigned(b.p05, digits)} to ${fmtSigned(b.p95, digits)} ${unit}`.trim() : 'no band';
 }
 
 function verdictOf(detectable: boolean | null | undefined): { verdict: string; verdictClass: string } {
@@ -170,7 +171,9 @@ export function compareView(c: Comparison, raster: ChangeRaster | null, unitM: n
       height: `${d.height_from_m === null ? dash : fmt(d.height_from_m, 2)} → ${d.height_to_m === null ? dash : fmt(d.height_to_m, 2)}`,
       volume: `${fmt(d.volume_from_m3, 1)} → ${fmt(d.volume_to_m3, 1)}`,
       delta: fmtSigned(d.volume_change_m3, 1),
+      band: d.volume_change_band ? `${bandText(d.volume_change_band, 1, '')}${d.volume_change_detectable ? '' : ' (holds zero)'}` : dash,
     })),
+    damBands: c.dams.some((d) => d.volume_change_band !== null),
     lod: c.dem_difference.note + ` σ = ${c.dem_difference.sigma_from_m} m (${c.dem_difference.sigma_from_source}) and ${c.dem_difference.sigma_to_m} m (${c.dem_difference.sigma_to_source}).`,
     method: methodLines(c),
     notes: c.notes,
