@@ -40,7 +40,7 @@ export interface CompareView {
     drowned: { id: string; by: string; before: string; after: string }[];
     leftOut: { id: string; reason: string }[];
   }[];
-  dams: { id: string; change: string; changeClass: string; matched: string; reasons: string; status: string; height: string; volume: string; delta: string; band: string }[];
+  dams: { id: string; change: string; changeClass: string; matched: string; reasons: string; status: string; height: string; volume: string; delta: string; band: string; detectable: string }[];
   damBands: boolean;
   lod: string;
   method: string[];
@@ -171,7 +171,8 @@ export function compareView(c: Comparison, raster: ChangeRaster | null, unitM: n
       height: `${d.height_from_m === null ? dash : fmt(d.height_from_m, 2)} → ${d.height_to_m === null ? dash : fmt(d.height_to_m, 2)}`,
       volume: `${fmt(d.volume_from_m3, 1)} → ${fmt(d.volume_to_m3, 1)}`,
       delta: fmtSigned(d.volume_change_m3, 1),
-      band: d.volume_change_band ? `${bandText(d.volume_change_band, 1, '')}${d.volume_change_detectable ? '' : ' (holds zero)'}` : dash,
+      band: d.volume_change_band ? `${fmtSigned(d.volume_change_band.p05, 0)} … ${fmtSigned(d.volume_change_band.p95, 0)}` : dash,
+      detectable: d.volume_change_detectable === null ? dash : d.volume_change_detectable ? 'yes' : 'no',
     })),
     damBands: c.dams.some((d) => d.volume_change_band !== null),
     lod: c.dem_difference.note + ` σ = ${c.dem_difference.sigma_from_m} m (${c.dem_difference.sigma_from_source}) and ${c.dem_difference.sigma_to_m} m (${c.dem_difference.sigma_to_source}).`,
