@@ -30,6 +30,7 @@ import { crestLocation } from './crest-location.js';
 import { ScenarioTally, type Scenarios } from './scenarios.js';
 import type { UncertaintyParams } from '../uncertainty/params.js';
 import { createDrawPrep, type DrawInputs, type DrawPrep } from '../uncertainty/prepare.js';
+import { WaterStage, defaultWaterRunParams, type WaterRunParams, type WaterWindowSource } from './water-stage.js';
 
 /** Run-level parameters beyond the pond engine's own. */
 export interface EstimateParams {
@@ -44,6 +45,8 @@ export interface EstimateParams {
   minConfidence: number;
   /** Monte Carlo draws and their sources (uncertainty/params.ts); absent or 0 draws: no bands. */
   uncertainty?: UncertaintyParams;
+  /** Ponds that already hold water (water-stage.ts); absent: the defaults. */
+  water?: WaterRunParams;
 }
 
 /** Progress of the long steps, for the CLI's bar. */
@@ -84,8 +87,10 @@ export async function estimatePonds(
   dams: readonly DamInput[],
   params: EstimateParams,
   progress?: ProgressFn,
+  waterSource?: WaterWindowSource | null,
 ): Promise<EstimateResult> {
   const warnings: Warning[] = [];
+  const water = new WaterStage(params.water ?? defaultWaterRunParams(), waterSource ?? null);
   const cellM = demCellSizeM(dem);
   const toLonLat = makeTransform(dem.crs, WGS84);
   const work: Working[] = dams.map((dam) => {
@@ -125,11 +130,19 @@ export async function estimatePonds(
       cellsVisited += w.fill?.visitedCount ?? 0;
       progress?.({ stage: 'ponds', done: ++done, total: dams.length });
     }
+    // Ponds holding water today: set their surfaces to their level, fill again on that surface.
+    const members = group.members.map((k) => work[k]!);
+    const waterWindow = await water.window(box);
+    if (water.detect(grid, members, box, waterWindow, warnings)) {
+      for (const w of members) cellsVisited += refillOne(grid, w, box, scratch, params, prep);
+    }
     combineGroup(grid, group.members.map((k) => work[k]!), box, depth!, outlines, work);
+    water.below(grid, members, box, waterWindow, depth);
     scenarioTally.addGroup(grid, group.members.map((k) => ({ index: k, result: work[k]!.result, fill: work[k]!.fill })));
     prep?.addGroup(grid, group.members.map((k) => ({ index: k, dam: work[k]!.dam, inTotals: work[k]!.result.in_totals, setup: work[k]!.setup, fill: work[k]!.fill })));
   }
 
+  warnings.push(...water.finish());
   const results = work.map((w) => w.result);
   const totals = totalsOf(results);
   return { dams: results, totals, depth, outlines, warnings, cellsVisited, scenarios: scenarioTally.finish(results, totals), drawInputs: prep?.finish() ?? null };
@@ -193,6 +206,32 @@ function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, 
   if (kept.limitedBy !== 'crest' && kept.limitedBy !== 'breach') {
     note(result, warnings, limitWarning(dam.id, kept));
   }
+}
+
+/**
+ * Fills a dam again with the setup it has, on a window whose water surfaces
+ * were set to their level, and records the fill's figures; returns the cells
+ * the new fill visited.
+ */
+function refillOne(grid: Grid, w: Working, box: CellBox, scratch: ReturnType<typeof createFillScratch>, params: EstimateParams, prep: DrawPrep | null): number {
+  const { setup, result } = w;
+  if (!setup || !w.fill || !w.box) return 0;
+  const own = w.box;
+  const reachBox = { col0: own.col0 - box.col0, row0: own.row0 - box.row0, col1: own.col1 - box.col0, row1: own.row1 - box.row0 };
+  const first = fillBehindCrest(grid, setup, { reachBox }, scratch);
+  const drawTopM = prep ? prep.floodTopM(w.dam, setup) : -Infinity;
+  const kept = first.escapeKind === null && drawTopM > first.topLevelM ? fillBehindCrest(grid, setup, { reachBox, maxLevelM: drawTopM }, scratch) : first;
+  w.fill = kept;
+  const stats = pondStats(grid, kept);
+  Object.assign(result, {
+    water_level_m: kept.waterLevelM,
+    limited_by: kept.limitedBy,
+    standalone_area_m2: stats.areaM2,
+    standalone_volume_m3: stats.volumeM3,
+    cells_visited: result.cells_visited + kept.visitedCount,
+    stage_storage: stageStorage(kept, setup.bedElevM, params.pond.stageStepM),
+  } satisfies Partial<DamResult>);
+  return kept.visitedCount;
 }
 
 /** Combines the group's ponds that count in the totals and records each dam's share, depth and outline. */
@@ -376,6 +415,18 @@ function emptyResult(dam: DamInput, minConfidence: number): DamResult {
     stage_storage: [],
     warnings: [],
     properties: dam.extra,
+    water_surface_elev_m: null,
+    water_surface_area_m2: 0,
+    water_surface_source: null,
+    water_surface_check: null,
+    freeboard_m: null,
+    depth_at_dam_m: null,
+    volume_above_surface_m3: 0,
+    volume_below_surface_m3: 0,
+    bed_source: 'none',
+    power_p: null,
+    pond_length_m: null,
+    side_slope: null,
   };
 }
 
@@ -385,11 +436,19 @@ function totalsOf(dams: DamResult[]): Totals {
   let volume = 0;
   let estimated = 0;
   let inTotals = 0;
+  let above = 0;
+  let below = 0;
+  let waterArea = 0;
+  let withWater = 0;
   for (const d of dams) {
     if (d.estimated) estimated++;
     if (d.estimated && d.in_totals) inTotals++;
     area += d.area_m2;
     volume += d.volume_m3;
+    above += d.volume_above_surface_m3 ?? 0;
+    below += d.volume_below_surface_m3 ?? 0;
+    waterArea += d.water_surface_area_m2 ?? 0;
+    if ((d.water_surface_area_m2 ?? 0) > 0) withWater++;
   }
   return {
     dam_count: dams.length,
@@ -398,6 +457,10 @@ function totalsOf(dams: DamResult[]): Totals {
     dams_in_totals: inTotals,
     inundated_area_m2: area,
     storage_m3: volume,
+    storage_above_surface_m3: above,
+    storage_below_surface_m3: below,
+    water_surface_area_m2: waterArea,
+    dams_with_water_surface: withWater,
   };
 }
 

@@ -64,7 +64,40 @@ export interface DamResult {
   crest_lat?: number | null;
   /** Monte Carlo bands of this dam's figures, keyed by the figure's name (uncertainty/bands.ts); absent without draws. */
   bands?: Bands;
+  /*
+   * Ponds that already hold water (pipeline/water-stage.ts). Lidar does not
+   * see through water: where a pond holds water today the DEM is its surface.
+   * `volume_m3` = `volume_above_surface_m3` + `volume_below_surface_m3`.
+   * Always written by estimate; optional so summaries of older runs still read.
+   */
+  /** Today's water surface behind the dam, m; null when none was found. */
+  water_surface_elev_m?: number | null;
+  /** Area of that surface this dam's row counts (a shared surface is counted once), m². */
+  water_surface_area_m2?: number;
+  /** `detected` in the DEM, or from the `mask` given with --water-mask; null when none. */
+  water_surface_source?: 'detected' | 'mask' | null;
+  /** `found`, or why no surface was kept (no-start, too-small, too-shallow, dips-below, tilted, no-mask); null when not looked for. */
+  water_surface_check?: string | null;
+  /** Crest elevation minus today's water surface, m (negative: overtopped). */
+  freeboard_m?: number | null;
+  /** Today's water surface minus the bed at the dam, m: the depth h of the power law. */
+  depth_at_dam_m?: number | null;
+  /** Capacity above today's water surface: the fill's share of the combined surface, m³. */
+  volume_above_surface_m3?: number;
+  /** Water below today's surface (model or bed DEM), m³. */
+  volume_below_surface_m3?: number;
+  /** Where the bed under today's water came from. */
+  bed_source?: BedSource;
+  /** Exponent p of the area–depth power law when it was used (dimensionless), else null. */
+  power_p?: number | null;
+  /** Reconstructed bed: the pond's length from the crest along the water, m. */
+  pond_length_m?: number | null;
+  /** Reconstructed bed: median valley-side slope at the shore (rise over run). */
+  side_slope?: number | null;
 }
+
+/** Where the bed under today's water came from: `none` (no water surface), a model, a bed DEM, or a bed DEM where it has data and a model elsewhere. */
+export type BedSource = 'none' | 'power-law' | 'reconstructed' | 'bed-dem' | 'bed-dem+power-law' | 'bed-dem+reconstructed';
 
 export interface Totals {
   dam_count: number;
@@ -73,10 +106,18 @@ export interface Totals {
   dams_in_totals: number;
   inundated_area_m2: number;
   storage_m3: number;
+  /** Σ volume_above_surface_m3 (capacity above today's water), m³. Optional so older summaries still read. */
+  storage_above_surface_m3?: number;
+  /** Σ volume_below_surface_m3 (water below today's surface), m³. */
+  storage_below_surface_m3?: number;
+  /** Σ water_surface_area_m2, m². */
+  water_surface_area_m2?: number;
+  /** Dams in the totals with a water surface today. */
+  dams_with_water_surface?: number;
 }
 
 export interface InputRecord {
-  role: 'dem' | 'dams';
+  role: 'dem' | 'dams' | 'water-mask' | 'bed-dem';
   path: string;
   sha256: string;
 }

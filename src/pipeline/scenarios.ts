@@ -97,7 +97,8 @@ export class ScenarioTally {
     combined.perPond.forEach((share, p) => {
       const m = counted[p]!;
       this.area[m.index] = share.areaM2;
-      this.volume[m.index] = share.volumeM3;
+      // Water below today's surface (water-stage.ts) stays under either scenario.
+      this.volume[m.index] = share.volumeM3 + (m.result.in_totals ? (m.result.volume_below_surface_m3 ?? 0) : 0);
       this.drownedBy[m.index] = share.drownedBy >= 0 ? counted[share.drownedBy]!.result.id : null;
     });
   }

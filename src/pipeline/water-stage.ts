@@ -1,0 +1,298 @@
+/**
+ * The water-surface stage of one run: ponds that already hold water.
+ *
+ * Per window group, after each dam's crest is set up and filled on the DEM
+ * as read:
+ * 1. `detect`: each dam counted in the totals gets its water surface, from
+ *    the DEM (ponds/water-surface.ts) or from a water mask. Two dams that
+ *    find the same water (a drowned dam's surface is its lower neighbour's)
+ *    share it out cell by cell: the larger surface keeps a cell (ties: the
+ *    dam listed first), so no water is counted twice. With a bed DEM, a
+ *    cell whose bed stands at or above the water level is not water.
+ *    Each dam's cells are then set to its water level in the window (the
+ *    lidar noise on a water surface is no ground relief), and the caller
+ *    fills every dam again on that surface: the fill's volume is then the
+ *    capacity above today's water, its area the pond at the crest.
+ * 2. `below`: after the group's ponds are combined, each dam's water below
+ *    its surface comes from the bed DEM where it has data and from the
+ *    chosen model elsewhere (ponds/below-surface.ts, bed-reconstruct.ts);
+ *    volume_m3 becomes above + below. Per-dam rows still sum exactly to the
+ *    totals: each total is the sum of its own column.
+ *
+ * depth.tif: where a bed is known cell by cell (reconstructed model or bed
+ * DEM) the depth below today's surface is added, so depth = water level −
+ * bed; under the power law (one volume per pond, no bed per cell) the
+ * depth is that above today's surface only.
+ */
+import type { Warning } from '../errors.js';
+import type { Grid } from '../grid/grid.js';
+import type { DamInput } from '../inventory.js';
+import { BELOW_MODELS, POWER_P_MEDIAN, volumeBelow, type BelowModel } from '../ponds/below-surface.js';
+import { DEFAULT_RECONSTRUCT_PARAMS, reconstructBed, type ReconstructParams } from '../ponds/bed-reconstruct.js';
+import type { CrestSetup } from '../ponds/crest.js';
+import type { PondFill } from '../ponds/fill.js';
+import {
+  DEFAULT_WATER_PARAMS,
+  createWaterScratch,
+  detectWaterSurface,
+  waterFromMask,
+  waterToleranceM,
+  type WaterOutcome,
+  type WaterParams,
+  type WaterSurface,
+} from '../ponds/water-surface.js';
+import type { BedSource, DamResult } from './result.js';
+import type { CellBox } from './windows.js';
+
+/** Run parameters of the water stage. */
+export interface WaterRunParams {
+  /** Look for water surfaces in the DEM (a water mask, when given, replaces the detection). */
+  detect: boolean;
+  water: WaterParams;
+  /** Model for the water below today's surface where no bed DEM has data. */
+  belowModel: BelowModel;
+  /** Exponent p of the area–depth power law (dimensionless). */
+  powerP: number;
+  reconstruct: ReconstructParams;
+}
+
+/** Defaults: detection on, QL2 noise, the power law at the beaver-pond median p = 0.91 (Karran et al. 2017). */
+export function defaultWaterRunParams(): WaterRunParams {
+  return {
+    detect: true,
+    water: { ...DEFAULT_WATER_PARAMS },
+    belowModel: 'power-law',
+    powerP: POWER_P_MEDIAN,
+    reconstruct: { ...DEFAULT_RECONSTRUCT_PARAMS },
+  };
+}
+
+export { BELOW_MODELS };
+
+/** Extra rasters on one window: a water-mask label per cell (0 = dry) and a bed per cell (NaN = no data). */
+export interface WaterWindow {
+  maskLabels: Int32Array | null;
+  bedZ: Float32Array | null;
+}
+
+/** Where the water mask and the bed DEM come from, window by window (io/water-inputs.ts). */
+export interface WaterWindowSource {
+  readonly hasMask: boolean;
+  readonly hasBed: boolean;
+  /** The window [col0, col1) × [row0, row1) of the DEM, on the DEM's grid. */
+  readWindow(box: CellBox): Promise<WaterWindow>;
+  /** Warnings for water-mask features that no dam's water touched, given the labels that were used. */
+  unusedMaskWarnings(used: ReadonlySet<number>): Warning[];
+}
+
+/** A dam as the stage sees it (the pipeline's working record has these). */
+export interface WaterMember {
+  dam: DamInput;
+  result: DamResult;
+  box: CellBox | null;
+  setup?: CrestSetup;
+  fill?: PondFill;
+}
+
+/** What the stage keeps about one dam between `detect` and `below`. */
+interface Found {
+  member: WaterMember;
+  surface: WaterSurface;
+  /** The cells this dam keeps after sharing, and their count. */
+  cells: Int32Array;
+}
+
+/** The water-surface stage of one run (see the file comment). */
+export class WaterStage {
+  private readonly usedLabels = new Set<number>();
+  private found: Found[] = [];
+
+  constructor(
+    readonly params: WaterRunParams,
+    private readonly source: WaterWindowSource | null,
+  ) {}
+
+  /** True when the stage has anything to do. */
+  get active(): boolean {
+    return this.params.detect || (this.source?.hasMask ?? false);
+  }
+
+  /** Reads the mask and bed for a window (nothing when neither was given). */
+  async window(box: CellBox): Promise<WaterWindow> {
+    if (!this.source) return { maskLabels: null, bedZ: null };
+    return this.source.readWindow(box);
+  }
+
+  /**
+   * Finds each member's water surface, shares cells out, sets the water
+   * cells of the window to their level. Returns true when any cell was set
+   * (the caller then fills the group's dams again).
+   */
+  detect(grid: Grid, members: WaterMember[], box: CellBox, win: WaterWindow, warnings: Warning[]): boolean {
+    this.found = [];
+    if (!this.active) return false;
+    const scratch = createWaterScratch(grid.width * grid.height);
+    const candidates: { member: WaterMember; surface: WaterSurface; order: number }[] = [];
+    members.forEach((m, order) => {
+      const { setup, result } = m;
+      if (!setup || !result.in_totals || result.status === 'proposed' || !m.box) return;
+      const reach = { col0: m.box.col0 - box.col0, row0: m.box.row0 - box.row0, col1: m.box.col1 - box.col0, row1: m.box.row1 - box.row0 };
+      const outcome: WaterOutcome = win.maskLabels
+        ? waterFromMask(grid, setup, win.maskLabels, this.params.water, reach, scratch)
+        : detectWaterSurface(grid, setup, this.params.water, reach, scratch);
+      result.water_surface_check = outcome.surface ? 'found' : outcome.reason;
+      if (outcome.surface) candidates.push({ member: m, surface: outcome.surface, order });
+    });
+    if (candidates.length === 0) return false;
+
+    // Share: the larger surface keeps a cell (ties: the dam listed first); with a bed DEM, no water where the bed is at or above the level.
+    candidates.sort((a, b) => b.surface.areaM2 - a.surface.areaM2 || a.order - b.order);
+    const owner = new Uint16Array(grid.width * grid.height);
+    const bedZ = win.bedZ;
+    candidates.forEach((c, k) => {
+      const { cells, levelM } = c.surface;
+      for (let j = 0; j < cells.length; j++) {
+        const i = cells[j]!;
+        if (owner[i] !== 0) continue;
+        if (bedZ && bedZ[i]! >= levelM) continue;
+        owner[i] = k + 1;
+      }
+    });
+    const z = grid.z;
+    let changed = false;
+    candidates.forEach((c, k) => {
+      const { cells, levelM } = c.surface;
+      const mine: number[] = [];
+      for (let j = 0; j < cells.length; j++) {
+        const i = cells[j]!;
+        if (owner[i] !== k + 1) continue;
+        owner[i] = 0xffff; // counted once even if listed twice
+        mine.push(i);
+        if (win.maskLabels) {
+          const label = win.maskLabels[i]!;
+          if (label > 0) this.usedLabels.add(label);
+        }
+        z[i] = levelM;
+        changed = true;
+      }
+      this.found.push({ member: c.member, surface: c.surface, cells: Int32Array.from(mine) });
+      this.warnAbout(c.member, c.surface, mine.length, warnings);
+    });
+    return changed;
+  }
+
+  /**
+   * Water below each found surface, after the group's ponds were combined
+   * (fills on the set surface); every member's volume_above_surface_m3.
+   */
+  below(grid: Grid, members: WaterMember[], box: CellBox, win: WaterWindow, depth: { box: CellBox; data: Float32Array } | null): void {
+    const { width } = grid;
+    for (const m of members) m.result.volume_above_surface_m3 = m.result.volume_m3;
+    for (const f of this.found) {
+      const { member, surface, cells } = f;
+      const r = member.result;
+      const setup = member.setup!;
+      const levelM = surface.levelM;
+      r.water_surface_elev_m = levelM;
+      r.water_surface_source = surface.source;
+      r.freeboard_m = r.crest_elev_m === null ? null : r.crest_elev_m - levelM;
+      r.depth_at_dam_m = levelM - setup.bedElevM;
+      if (cells.length === 0) continue; // its water is another dam's
+      let areaM2 = 0;
+      for (let j = 0; j < cells.length; j++) areaM2 += grid.cellAreaM2[(cells[j]! - (cells[j]! % width)) / width]!;
+      const bedAtDamM = setup.bedElevM;
+      const depthAtDamM = levelM - bedAtDamM;
+      // Cells with a bed from the bed DEM, and the rest.
+      const bedZ = win.bedZ;
+      let bedDemCells = 0;
+      if (bedZ) for (let j = 0; j < cells.length; j++) if (bedZ[cells[j]!] === bedZ[cells[j]!]) bedDemCells++;
+      let volumeM3 = 0;
+      let maxBelowM = 0;
+      let perCell: Float32Array | null = null;
+      let source: BedSource;
+      if (this.params.belowModel === 'reconstructed' || bedDemCells === cells.length) {
+        const bed = reconstructBed(grid, cells, levelM, setup.crestCells, bedAtDamM, this.params.reconstruct, bedZ, setup.downstreamCells);
+        volumeM3 = bed.volumeM3;
+        maxBelowM = bed.maxDepthM;
+        perCell = bed.bedM;
+        source = bedDemCells === cells.length && cells.length > 0 ? 'bed-dem' : bedDemCells > 0 ? 'bed-dem+reconstructed' : 'reconstructed';
+        r.pond_length_m = bed.lengthM;
+        r.side_slope = Number.isFinite(bed.sideSlope) ? bed.sideSlope : null;
+      } else {
+        // Power law over the cells without a bed-DEM value, the bed DEM cell by cell over the others.
+        let restAreaM2 = areaM2;
+        if (bedZ && bedDemCells > 0) {
+          perCell = new Float32Array(cells.length).fill(NaN);
+          for (let j = 0; j < cells.length; j++) {
+            const i = cells[j]!;
+            const b = bedZ[i]!;
+            if (b !== b) continue;
+            const a = grid.cellAreaM2[(i - (i % width)) / width]!;
+            perCell[j] = b;
+            volumeM3 += a * (levelM - b);
+            if (levelM - b > maxBelowM) maxBelowM = levelM - b;
+            restAreaM2 -= a;
+          }
+        }
+        volumeM3 += volumeBelow(restAreaM2, depthAtDamM, this.params.powerP);
+        if (restAreaM2 > 0 && depthAtDamM > maxBelowM) maxBelowM = depthAtDamM;
+        source = bedDemCells > 0 ? 'bed-dem+power-law' : 'power-law';
+        r.power_p = this.params.powerP;
+      }
+      r.water_surface_area_m2 = areaM2;
+      r.bed_source = source;
+      const aboveM3 = r.volume_m3;
+      r.volume_above_surface_m3 = aboveM3;
+      r.volume_below_surface_m3 = volumeM3;
+      r.volume_m3 = aboveM3 + volumeM3;
+      if (r.area_m2 > 0) r.mean_depth_m = r.volume_m3 / r.area_m2;
+      const aboveAtWaterM = r.water_level_m !== null && r.water_level_m > levelM ? r.water_level_m - levelM : 0;
+      r.max_depth_m = Math.max(r.max_depth_m, aboveAtWaterM + maxBelowM);
+
+      // Depth below the surface into depth.tif where the bed is known cell by cell.
+      if (depth && perCell) {
+        const outW = depth.box.col1 - depth.box.col0;
+        for (let j = 0; j < cells.length; j++) {
+          const b = perCell[j]!;
+          if (b !== b || !(levelM > b)) continue;
+          const i = cells[j]!;
+          const col = i % width;
+          const row = (i - col) / width;
+          const o = (row + box.row0 - depth.box.row0) * outW + (col + box.col0 - depth.box.col0);
+          const above = depth.data[o]!;
+          depth.data[o] = (above === above ? above : 0) + (levelM - b);
+        }
+      }
+    }
+    this.found = [];
+  }
+
+  /** Run-level warnings once every group is done (mask features no pond touched). */
+  finish(): Warning[] {
+    return this.source?.hasMask ? this.source.unusedMaskWarnings(this.usedLabels) : [];
+  }
+
+  private warnAbout(member: WaterMember, surface: WaterSurface, kept: number, warnings: Warning[]): void {
+    const id = member.dam.id;
+    const r = member.result;
+    const add = (code: string, message: string): void => {
+      const full = `dam ${id}: ${message}`;
+      warnings.push({ code, damId: id, message: full });
+      r.warnings.push(message);
+    };
+    const crest = member.setup!.crestElevM;
+    const tol = waterToleranceM(this.params.water);
+    if (surface.levelM > crest + tol) {
+      add(
+        'water-above-crest',
+        `today's water surface (${surface.levelM.toFixed(2)} m) stands ${(surface.levelM - crest).toFixed(2)} m above the crest (${crest.toFixed(2)} m): the dam is overtopped, or its crest height is wrong (check height_m)`,
+      );
+    }
+    if (surface.reachesEdge) {
+      add('water-reaches-edge', `the water surface reaches the edge of the search box; its area and the water below it are a lower bound (raise --max-reach)`);
+    }
+    if (kept === 0) {
+      add('water-shared', 'its water surface is part of a larger pond counted for another dam');
+    }
+  }
+}
