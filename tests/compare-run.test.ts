@@ -240,6 +240,65 @@ describe('bands from per-draw files', () => {
   });
 });
 
+describe('watersheds and valleys of different size', () => {
+  // The runs as they read once watersheds are reported: the lower valley (dams a and new1,
+  // 150 m of stream, 4500 m² of valley bottom) and the upper one (dam up).
+  async function addWatersheds(runName: string): Promise<void> {
+    const runDir = runs[runName]!.runDir;
+    const summaryPath = join(runDir, 'summary.json');
+    const s = JSON.parse(await readFile(summaryPath, 'utf8')) as Summary & Record<string, unknown>;
+    const shed = (id: string): string => (id === 'up' ? 'upper' : 'lower');
+    const rows = ['lower', 'upper'].map((id) => {
+      const dams = s.dams.filter((d) => shed(d.id) === id);
+      let storage = 0;
+      let area = 0;
+      for (const d of dams) {
+        storage += d.volume_m3;
+        area += d.area_m2;
+      }
+      return { id, dam_count: dams.length, stream_length_m: 150, inundated_area_m2: area, influence_area_m2: 2 * area, valley_bottom_area_m2: 4500, storage_m3: storage };
+    });
+    s['watersheds'] = rows;
+    (s.totals as unknown as Record<string, unknown>)['influence_area_m2'] = rows[0]!.influence_area_m2 + rows[1]!.influence_area_m2;
+    for (const d of s.dams) (d as unknown as Record<string, unknown>)['watershed'] = shed(d.id);
+    await writeFile(summaryPath, JSON.stringify(s));
+    // Draws with dam rows only: each dam its deterministic volume plus a shared error.
+    const lines = ['draw,scope,id,storage_m3,inundated_area_m2,volume_m3,area_m2'];
+    for (let k = 0; k < 200; k++) {
+      const e = (k % 20) - 9.5;
+      lines.push(`${k},total,,${s.totals.storage_m3 + e * s.dams.length},${s.totals.inundated_area_m2},,`);
+      for (const d of s.dams) lines.push(`${k},dam,${d.id},,,${d.volume_m3 + e},${d.area_m2}`);
+    }
+    await writeFile(join(runDir, 'draws.csv'), lines.join('\n') + '\n');
+  }
+
+  it('differences each watershed, with bands summed from the dam draws, and normalises by stream and valley bottom', async () => {
+    await addWatersheds('y1');
+    await addWatersheds('add');
+    const c = await compare(['y1', 'add'], 'cmp-sheds');
+    const lower = c.watersheds!.find((w) => w.id === 'lower')!;
+    const upper = c.watersheds!.find((w) => w.id === 'upper')!;
+    const v = dam('add', 'new1').volume_m3;
+    expect(lower.storage_change_m3! / v).toBeCloseTo(1, 12);
+    expect(upper.storage_change_m3).toBe(0);
+    // Per-draw watershed sums: lower holds one more dam, so each draw adds e once more;
+    // the independent band of that (e uniform on ±9.5, two dams against three) is not a point.
+    expect(lower.band_methods['storage_change_m3']).toMatch(/paired|independent/);
+    expect(lower.bands!['storage_change_m3']!.p95).toBeGreaterThan(lower.bands!['storage_change_m3']!.p05);
+    expect(c.totals.influence_area_change_m2).not.toBeNull();
+    const n = c.runs[1]!.normalised;
+    expect(n.available).toBe(true);
+    // 300 m of stream in all: storage per km = storage / 0.3 km; dams per km = dams / 0.3 km.
+    expect(n.total.storage_per_stream_km_m3!).toBeCloseTo(runs['add']!.summary.totals.storage_m3 / 0.3, 6);
+    expect(n.total.dams_per_stream_km!).toBeCloseTo(3 / 0.3, 9);
+    expect(n.total.storage_per_valley_bottom_km2_m3!).toBeCloseTo(runs['add']!.summary.totals.storage_m3 / 0.009, 3);
+    expect(n.watersheds.find((w) => w.id === 'upper')!.valley_bottom_influenced_pct!).toBeCloseTo((100 * 2 * dam('add', 'up').area_m2) / 4500, 9);
+    const html = await readFile(join(dir, 'cmp-sheds', 'compare.html'), 'utf8');
+    expect(html).toContain('id="watersheds"');
+    for (const name of ['y1', 'add']) await rm(join(runs[name]!.runDir, 'draws.csv'));
+  });
+});
+
 describe('bad input', () => {
   it('names a folder that is not a run', async () => {
     const empty = join(dir, 'not-a-run');

@@ -46,3 +46,38 @@ export function drawSeries(table: DrawTable | null, scope: DrawScope, id: string
   for (let k = 0; k < values.length; k++) if (Number.isNaN(values[k]!)) return null;
   return values;
 }
+
+/**
+ * Adds per-draw watershed sums where the table has dam rows but no watershed
+ * rows: a watershed's figure in draw k is the sum of its dams' figures in
+ * draw k (`volume_m3` → `storage_m3`, `area_m2` → `inundated_area_m2`), in
+ * dam order. `dams` gives each dam's id and watershed (null: none).
+ */
+export function addWatershedSums(table: DrawTable, dams: readonly { id: string; watershed: string | null }[]): void {
+  const sums = new Map<string, Map<string, Float64Array>>();
+  const pairs = [
+    ['volume_m3', 'storage_m3'],
+    ['area_m2', 'inundated_area_m2'],
+  ] as const;
+  for (const d of dams) {
+    if (d.watershed === null || table.series.has(drawKey('watershed', d.watershed))) continue;
+    const rows = table.series.get(drawKey('dam', d.id));
+    if (!rows) continue;
+    let ws = sums.get(d.watershed);
+    if (!ws) {
+      ws = new Map();
+      sums.set(d.watershed, ws);
+    }
+    for (const [from, to] of pairs) {
+      const src = rows.get(from);
+      if (!src) continue;
+      let acc = ws.get(to);
+      if (!acc) {
+        acc = new Float64Array(table.count);
+        ws.set(to, acc);
+      }
+      for (let k = 0; k < table.count; k++) acc[k]! += src[k]!;
+    }
+  }
+  for (const [id, figures] of sums) table.series.set(drawKey('watershed', id), figures);
+}

@@ -44,6 +44,8 @@ export interface RunDam {
   standalone_area_m2: number;
   drowned_by: string | null;
   year: number | null;
+  /** The watershed the dam lies in (`watershed` or `watershed_id`), or null. */
+  watershed: string | null;
   crest: CrestPoint | null;
   bands: Bands | null;
 }
@@ -180,6 +182,7 @@ function parseDam(raw: unknown, k: number, bad: (what: string) => InputError): R
     standalone_area_m2: num(d['standalone_area_m2']) ?? 0,
     drowned_by: str(d['drowned_by']),
     year: num(d['year']),
+    watershed: str(d['watershed']) ?? str(d['watershed_id']) ?? (num(d['watershed_id']) !== null ? String(d['watershed_id']) : null),
     crest: x !== null && y !== null ? { x, y, lon: num(d['crest_lon']), lat: num(d['crest_lat']) } : null,
     bands: parseBands(d['bands']),
   };

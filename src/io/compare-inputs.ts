@@ -8,7 +8,7 @@ import { basename, join, resolve } from 'node:path';
 import { InputError } from '../errors.js';
 import type { DepthRaster } from '../compare/change-map.js';
 import type { RunInput } from '../compare/compare.js';
-import { drawKey, type DrawScope, type DrawTable } from '../compare/draws.js';
+import { addWatershedSums, drawKey, type DrawScope, type DrawTable } from '../compare/draws.js';
 import { parseRunSummary } from '../compare/run-record.js';
 import { cellMetrics } from './crs.js';
 import { CsvSyntaxError, detectDelimiter, parseCsv } from './csv.js';
@@ -34,6 +34,7 @@ export async function readRunFolder(dir: string, label?: string): Promise<RunInp
   }
   const record = parseRunSummary(json, summaryPath, label ?? (basename(resolve(dir)) || dir), dir);
   const draws = (await exists(join(dir, RUN_FILES.draws))) ? parseDrawsCsv(await readFile(join(dir, RUN_FILES.draws), 'utf8'), join(dir, RUN_FILES.draws)) : null;
+  if (draws && record.watersheds) addWatershedSums(draws, record.dams);
   const depth = (await exists(join(dir, RUN_FILES.depth))) ? await readDepth(join(dir, RUN_FILES.depth)) : null;
   return { record, draws, depth };
 }
