@@ -22,6 +22,7 @@ function dam(id: string, lon: number, lat: number, extra: Partial<RunDam> = {}):
     standalone_area_m2: 300,
     drowned_by: null,
     year: null,
+    watershed: null,
     crest: { x: 0, y: 0, lon, lat },
     bands: null,
     ...extra,
