@@ -126,6 +126,20 @@ describe('storage change between runs', () => {
   });
 });
 
+describe('more than two runs', () => {
+  it('compares each run with the one before, and the first with the last at the top level', async () => {
+    const c = await compare(['y1', 'add', 'cascade'], 'cmp-three');
+    expect(c.pairs.map((p) => [p.from, p.to])).toEqual([['y1', 'add'], ['add', 'cascade']]);
+    const sum = c.pairs[0]!.totals.storage_change_m3 + c.pairs[1]!.totals.storage_change_m3;
+    expect(c.totals.storage_change_m3 / sum).toBeCloseTo(1, 9);
+    expect(c.dams.find((d) => d.id === 'low')!.change).toBe('new');
+    expect(c.pairs[1]!.dams.find((d) => d.id === 'new1')!.change).toBe('gone');
+    const csv = parseCsv(await readFile(join(dir, 'cmp-three', 'compare.csv'), 'utf8'), ',');
+    const totals = csv.filter((r) => r.fields[2] === 'total').map((r) => `${r.fields[0]}→${r.fields[1]}`);
+    expect(totals).toEqual(['y1→cascade', 'y1→add', 'add→cascade']);
+  });
+});
+
 describe('matching and classing between surveys', () => {
   it('matches dams whose ids changed by crest proximity and classes a breach as changed', async () => {
     const c = await compare(['y1', 'renamed'], 'cmp-renamed');
