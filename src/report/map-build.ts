@@ -21,6 +21,8 @@ export const HILLSHADE_MAX_SIDE_PX = 1600;
 const MARGIN_SHARE = 0.12;
 /** …and at least this many metres. */
 const MARGIN_MIN_M = 60;
+/** Narrow side of the mapped extent at least this share of the long side, where the DEM reaches. */
+const MIN_ASPECT = 0.6;
 /** Rows of DEM cells read at a time (rounded up to whole blocks), so large DEMs never sit whole in memory. */
 const STRIP_ROWS = 512;
 
@@ -66,10 +68,26 @@ export async function buildReportMap(args: {
     r1 = dem.height;
   } else {
     const margin = Math.max(MARGIN_SHARE * Math.max(c1 - c0, r1 - r0), MARGIN_MIN_M / cellM);
-    c0 = Math.max(0, Math.floor(c0 - margin));
-    r0 = Math.max(0, Math.floor(r0 - margin));
-    c1 = Math.min(dem.width, Math.ceil(c1 + margin));
-    r1 = Math.min(dem.height, Math.ceil(r1 + margin));
+    c0 -= margin;
+    r0 -= margin;
+    c1 += margin;
+    r1 += margin;
+    // No sliver maps: widen the narrow side (in metres) to at least MIN_ASPECT of the long one.
+    const wM = (c1 - c0) * Math.abs(t.dx) * metresPerUnitX;
+    const hM = (r1 - r0) * Math.abs(t.dy) * metresPerUnitY;
+    if (wM < MIN_ASPECT * hM) {
+      const grow = (MIN_ASPECT * hM - wM) / (Math.abs(t.dx) * metresPerUnitX) / 2;
+      c0 -= grow;
+      c1 += grow;
+    } else if (hM < MIN_ASPECT * wM) {
+      const grow = (MIN_ASPECT * wM - hM) / (Math.abs(t.dy) * metresPerUnitY) / 2;
+      r0 -= grow;
+      r1 += grow;
+    }
+    c0 = Math.max(0, Math.floor(c0));
+    r0 = Math.max(0, Math.floor(r0));
+    c1 = Math.min(dem.width, Math.ceil(c1));
+    r1 = Math.min(dem.height, Math.ceil(r1));
   }
   const maxSide = args.maxSidePx ?? HILLSHADE_MAX_SIDE_PX;
   const block = Math.max(1, Math.ceil(Math.max(c1 - c0, r1 - r0) / maxSide));

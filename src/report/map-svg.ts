@@ -16,8 +16,13 @@ import { MAP_STYLE, OKABE_ITO, STATUS_STYLE } from './palette.js';
 import type { RunDam } from './run-data.js';
 import { c, linesPath, marker, niceBelow, niceTicks, ringsPath, simplify, text } from './svg.js';
 
-/** Width of the map frame in SVG units (the whole figure adds margins for coordinate labels). */
-const MAP_WIDTH = 1000;
+/**
+ * Size of the map frame in SVG units (the figure adds margins for coordinate
+ * labels): 1000 wide, or 780 tall for extents taller than wide, so text keeps
+ * about the same size on the page whatever the map's shape.
+ */
+const FRAME_WIDE = 1000;
+const FRAME_TALL = 780;
 const MARGIN = { left: 78, right: 14, top: 14, bottom: 52 };
 /** Outlines are simplified to this many SVG units (about a third of a pixel on a full-width A4 page). */
 const SIMPLIFY_TOLERANCE = 0.35;
@@ -56,7 +61,9 @@ export function buildMapFigure(map: ReportMap, dams: readonly RunDam[], layers: 
   const { extent } = map;
   const widthM = (extent.xmax - extent.xmin) * map.metresPerUnitX;
   const heightM = (extent.ymax - extent.ymin) * map.metresPerUnitY;
-  const k = MAP_WIDTH / widthM; // SVG units per metre
+  const tall = heightM > widthM;
+  const k = tall ? FRAME_TALL / heightM : FRAME_WIDE / widthM; // SVG units per metre
+  const MAP_WIDTH = widthM * k;
   const mapH = heightM * k;
   const totalW = MAP_WIDTH + MARGIN.left + MARGIN.right;
   const totalH = mapH + MARGIN.top + MARGIN.bottom;
@@ -178,7 +185,7 @@ export function buildMapFigure(map: ReportMap, dams: readonly RunDam[], layers: 
   body += watershedLabels.join('');
   body += '</g>';
   body += `<rect class="map-frame" x="${c(ox)}" y="${c(oy)}" width="${c(MAP_WIDTH)}" height="${c(mapH)}"/>`;
-  body += coordinateTicks(map, sx, sy, ox, oy, mapH);
+  body += coordinateTicks(map, sx, sy, ox, oy, MAP_WIDTH, mapH);
   const scale = scaleBar(ox + 12, oy + mapH - 12, k, widthM);
   body += scale.svg;
   body += northArrow(ox + MAP_WIDTH - 30, oy + 34);
@@ -262,11 +269,11 @@ function unitName(unit: string): string {
 }
 
 /** Ticks and labels along the bottom and left edges, in the DEM CRS's own units. */
-function coordinateTicks(map: ReportMap, sx: (x: number) => number, sy: (y: number) => number, ox: number, oy: number, mapH: number): string {
+function coordinateTicks(map: ReportMap, sx: (x: number) => number, sy: (y: number) => number, ox: number, oy: number, mapW: number, mapH: number): string {
   const { extent } = map;
   const geographic = map.crs.unit === 'degree';
-  const xt = niceTicks(extent.xmin, extent.xmax, 6);
-  const yt = niceTicks(extent.ymin, extent.ymax, Math.max(3, Math.round((6 * mapH) / MAP_WIDTH)));
+  const xt = niceTicks(extent.xmin, extent.xmax, Math.max(3, Math.round(mapW / 160)));
+  const yt = niceTicks(extent.ymin, extent.ymax, Math.max(3, Math.round(mapH / 160)));
   const step = (t: number[]): number => (t.length > 1 ? t[1]! - t[0]! : 1);
   const label = (v: number, s: number): string => {
     if (!geographic) return formatNumber(v, 0);
@@ -277,7 +284,7 @@ function coordinateTicks(map: ReportMap, sx: (x: number) => number, sy: (y: numb
   const bottom = oy + mapH;
   for (const v of xt) {
     const x = sx(v);
-    if (x < ox + 30 || x > ox + MAP_WIDTH - 30) continue;
+    if (x < ox + 30 || x > ox + mapW - 30) continue;
     out += `<path class="tick" d="M${c(x)} ${c(bottom)}v5"/>`;
     out += text(x, bottom + 17, label(v, step(xt)), { 'text-anchor': 'middle' });
   }
@@ -288,32 +295,32 @@ function coordinateTicks(map: ReportMap, sx: (x: number) => number, sy: (y: numb
     out += `<text text-anchor="middle" transform="translate(${c(ox - 10)} ${c(y)}) rotate(-90)">${escapeHtml(label(v, step(yt)))}</text>`;
   }
   const unit = geographic ? '°' : map.crs.unit === 'metre' ? 'm' : map.crs.unit === 'foot' ? 'ft' : 'US survey ft';
-  out += text(ox + MAP_WIDTH / 2, bottom + 40, geographic ? 'longitude, °' : `easting, ${unit}`, { class: 'axis-title', 'text-anchor': 'middle' });
+  out += text(ox + mapW / 2, bottom + 40, geographic ? 'longitude, °' : `easting, ${unit}`, { class: 'axis-title', 'text-anchor': 'middle' });
   out += `<text class="axis-title" text-anchor="middle" transform="translate(${c(ox - 44)} ${c(oy + mapH / 2)}) rotate(-90)">${geographic ? 'latitude, °' : `northing, ${unit}`}</text>`;
   return out + '</g>';
 }
 
-/** Two scale bars, metres over feet (or miles), about a fifth of the map wide. */
+/** Two scale bars, metres over feet (or miles), about a fifth of the map wide, each labelled at its end. */
 function scaleBar(x0: number, yBottom: number, k: number, widthM: number): { svg: string; text: string } {
-  const lengthM = niceBelow(widthM * 0.2);
-  const feetTotal = (widthM * 0.2) / FOOT_M;
+  const lengthM = niceBelow(widthM * 0.22);
+  const feetTotal = (widthM * 0.22) / FOOT_M;
   const useMiles = feetTotal >= 5280;
   const lengthUs = useMiles ? niceBelow(feetTotal / 5280) : niceBelow(feetTotal);
   const usM = useMiles ? lengthUs * 5280 * FOOT_M : lengthUs * FOOT_M;
   const wM = lengthM * k;
   const wUs = usM * k;
-  const boxW = Math.max(wM, wUs) + 70;
-  const y1 = yBottom - 44;
-  const y2 = yBottom - 16;
-  const siLabel = lengthM >= 1000 ? `${formatNumber(lengthM / 1000)} km` : `${formatNumber(lengthM)} m`;
-  const usLabel = useMiles ? `${formatNumber(lengthUs)} mi` : `${formatNumber(lengthUs)} ft`;
+  const whole = (v: number): string => formatNumber(v, v >= 1 ? 0 : Math.ceil(-Math.log10(v)));
+  const siLabel = lengthM >= 1000 ? `${whole(lengthM / 1000)} km` : `${whole(lengthM)} m`;
+  const usLabel = useMiles ? `${whole(lengthUs)} mi` : `${whole(lengthUs)} ft`;
+  const boxW = Math.max(wM, wUs) + 86;
+  const y1 = yBottom - 34;
+  const y2 = yBottom - 14;
   const bar = (y: number, w: number, label: string): string =>
-    `<rect class="sb-dark" x="${c(x0 + 8)}" y="${c(y)}" width="${c(w / 2)}" height="5"/>` +
-    `<rect class="sb-light" x="${c(x0 + 8 + w / 2)}" y="${c(y)}" width="${c(w / 2)}" height="5"/>` +
-    text(x0 + 8, y - 4, '0', { 'text-anchor': 'middle' }) +
-    text(x0 + 8 + w, y - 4, label, { 'text-anchor': 'middle' });
+    `<rect class="sb-dark" x="${c(x0 + 10)}" y="${c(y)}" width="${c(w / 2)}" height="5"/>` +
+    `<rect class="sb-light" x="${c(x0 + 10 + w / 2)}" y="${c(y)}" width="${c(w / 2)}" height="5"/>` +
+    text(x0 + 16 + w, y + 6, label, {});
   const svg =
-    `<g class="scale-bar"><rect class="sb-box" x="${c(x0)}" y="${c(y1 - 22)}" width="${c(boxW)}" height="${c(yBottom - y1 + 18)}" rx="3"/>` +
+    `<g class="scale-bar"><rect class="sb-box" x="${c(x0)}" y="${c(y1 - 12)}" width="${c(boxW)}" height="${c(yBottom - y1 + 16)}" rx="3"/>` +
     bar(y1, wM, siLabel) +
     bar(y2, wUs, usLabel) +
     '</g>';

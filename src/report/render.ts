@@ -18,7 +18,7 @@ import { buildView, type ReportInput, type ReportView } from './view.js';
 export const TEMPLATES_DIR = fileURLToPath(new URL('../../templates/', import.meta.url));
 
 type Env = typeof Handlebars;
-let cached: { env: Env; page: Handlebars.TemplateDelegate<ReportView & { css: string }>; css: string } | null = null;
+let cached: { env: Env; page: Handlebars.TemplateDelegate<ReportView & { css: string; pageCss: string }>; css: string } | null = null;
 
 /**
  * A Handlebars environment with the report's helpers and partials, for the
@@ -26,9 +26,6 @@ let cached: { env: Env; page: Handlebars.TemplateDelegate<ReportView & { css: st
  */
 export function createReportEnvironment(): { env: Env; css: string } {
   const env = Handlebars.create();
-  env.registerHelper('fixed', (value: unknown, digits: unknown) =>
-    typeof value === 'number' && typeof digits === 'number' ? value.toFixed(digits) : '',
-  );
   const partialsDir = join(TEMPLATES_DIR, 'partials');
   for (const file of readdirSync(partialsDir).sort()) {
     if (!file.endsWith('.hbs')) continue;
@@ -42,9 +39,27 @@ export function createReportEnvironment(): { env: Env; css: string } {
 export function renderReport(input: ReportInput): string {
   if (!cached) {
     const { env, css } = createReportEnvironment();
-    const page = env.compile<ReportView & { css: string }>(readFileSync(join(TEMPLATES_DIR, 'report.hbs'), 'utf8'), { strict: false, noEscape: false });
+    const page = env.compile<ReportView & { css: string; pageCss: string }>(readFileSync(join(TEMPLATES_DIR, 'report.hbs'), 'utf8'), { strict: false, noEscape: false });
     cached = { env, page, css };
   }
   const view = buildView(input);
-  return cached.page({ ...view, css: cached.css });
+  const html = cached.page({ ...view, css: cached.css, pageCss: pageCss(view) });
+  // Template indentation around left-out sections leaves blank, indented lines: trim them.
+  return html.replace(/[ \t]+$/gm, '').replace(/\n{3,}/g, '\n\n');
+}
+
+/**
+ * Rules that depend on the run (where the hillshade sits under the map's
+ * SVG, how wide a tall map may grow), kept in the <style> block rather than
+ * in style attributes.
+ */
+function pageCss(view: ReportView): string {
+  const m = view.map;
+  if (!m) return '';
+  let css = `.map-frame-box { max-width: ${m.maxWidthCss}; }`;
+  if (m.image) {
+    const p = (v: number): string => `${v.toFixed(4)}%`;
+    css += `\n.map-frame-box .hillshade { left: ${p(m.image.leftPct)}; top: ${p(m.image.topPct)}; width: ${p(m.image.widthPct)}; height: ${p(m.image.heightPct)}; }`;
+  }
+  return css;
 }

@@ -81,6 +81,27 @@ export interface RunTotals {
   bands: Bands | null;
 }
 
+/** The Monte Carlo set-up of a run (summary.json `uncertainty`), when it has draws. */
+export interface RunUncertainty {
+  draws: number;
+  seed: number | null;
+  method: string | null;
+  sources: { name: string; enabled: boolean; distribution: string; basis: string }[];
+  approximations: string[];
+  /** Monte Carlo standard error of the 95th percentile, by figure name. */
+  p95StandardError: [string, number][];
+  tooFewDraws: boolean;
+}
+
+/** Existing and existing-plus-proposed water surfaces (summary.json `scenarios`). */
+export interface RunScenarios {
+  existing: { damsCounted: number; inundatedAreaM2: number; storageM3: number };
+  withProposed: { damsCounted: number; proposedCounted: number; inundatedAreaM2: number; storageM3: number };
+  added: { inundatedAreaM2: number; storageM3: number };
+  drownedByProposed: { id: string; drownedBy: string; volumeExistingM3: number; volumeWithProposedM3: number; index: number }[];
+  proposedLeftOut: { id: string; reason: string }[];
+}
+
 export interface RunSummary {
   tool: { name: string; version: string };
   run: { startedAt: string | null; finishedAt: string | null; durationS: number | null };
@@ -105,6 +126,8 @@ export interface RunSummary {
   dams: RunDam[];
   watersheds: RunWatershed[] | null;
   warnings: { code: string; damId: string | null; message: string }[];
+  uncertainty: RunUncertainty | null;
+  scenarios: RunScenarios | null;
 }
 
 type Obj = Record<string, unknown>;
@@ -230,6 +253,58 @@ export function parseRunSummary(text: string, path: string): RunSummary {
     warnings: (Array.isArray(o['warnings']) ? (o['warnings'] as unknown[]) : []).flatMap((i) => {
       const r = obj(i);
       return r ? [{ code: str(r['code']) ?? 'warning', damId: str(r['dam_id']), message: str(r['message']) ?? '' }] : [];
+    }),
+    uncertainty: uncertaintyOf(o['uncertainty']),
+    scenarios: scenariosOf(o['scenarios']),
+  };
+}
+
+function uncertaintyOf(v: unknown): RunUncertainty | null {
+  const u = obj(v);
+  const draws = u ? num(u['draws']) : null;
+  if (!u || draws === null) return null;
+  const mc = obj(u['monte_carlo']) ?? {};
+  const se = obj(mc['p95_standard_error']) ?? {};
+  return {
+    draws,
+    seed: num(u['seed']),
+    method: str(u['method']),
+    sources: (Array.isArray(u['sources']) ? (u['sources'] as unknown[]) : []).flatMap((s) => {
+      const r = obj(s);
+      const name = r ? str(r['name']) : null;
+      return r && name ? [{ name, enabled: r['enabled'] !== false, distribution: str(r['distribution']) ?? '', basis: str(r['basis']) ?? '' }] : [];
+    }),
+    approximations: strings(u['approximations']),
+    p95StandardError: Object.entries(se).flatMap(([k, x]) => (typeof x === 'number' && Number.isFinite(x) ? [[k, x] as [string, number]] : [])),
+    tooFewDraws: mc['too_few_draws'] === true,
+  };
+}
+
+function scenariosOf(v: unknown): RunScenarios | null {
+  const s = obj(v);
+  const e = s ? obj(s['existing']) : null;
+  const w = s ? obj(s['with_proposed']) : null;
+  const a = s ? obj(s['added']) : null;
+  if (!s || !e || !w || !a) return null;
+  const figures = [num(e['dams_counted']), num(e['inundated_area_m2']), num(e['storage_m3']), num(w['dams_counted']), num(w['proposed_counted']), num(w['inundated_area_m2']), num(w['storage_m3']), num(a['inundated_area_m2']), num(a['storage_m3'])];
+  if (figures.some((f) => f === null)) return null;
+  const [eDams, eArea, eStorage, wDams, wProposed, wArea, wStorage, aArea, aStorage] = figures as number[];
+  return {
+    existing: { damsCounted: eDams!, inundatedAreaM2: eArea!, storageM3: eStorage! },
+    withProposed: { damsCounted: wDams!, proposedCounted: wProposed!, inundatedAreaM2: wArea!, storageM3: wStorage! },
+    added: { inundatedAreaM2: aArea!, storageM3: aStorage! },
+    drownedByProposed: (Array.isArray(s['drowned_by_proposed']) ? (s['drowned_by_proposed'] as unknown[]) : []).flatMap((item, index) => {
+      const r = obj(item);
+      const id = r ? str(r['id']) : null;
+      const by = r ? str(r['drowned_by']) : null;
+      const ve = r ? num(r['volume_existing_m3']) : null;
+      const vw = r ? num(r['volume_with_proposed_m3']) : null;
+      return id && by && ve !== null && vw !== null ? [{ id, drownedBy: by, volumeExistingM3: ve, volumeWithProposedM3: vw, index }] : [];
+    }),
+    proposedLeftOut: (Array.isArray(s['proposed_left_out']) ? (s['proposed_left_out'] as unknown[]) : []).flatMap((item) => {
+      const r = obj(item);
+      const id = r ? str(r['id']) : null;
+      return r && id ? [{ id, reason: str(r['reason']) ?? '' }] : [];
     }),
   };
 }

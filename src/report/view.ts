@@ -30,12 +30,30 @@ interface Card {
 }
 
 export interface ReportView {
+  /** The <title>: at most 70 characters. */
+  pageTitle: string;
   title: string;
   subtitle: string;
   toolVersion: string;
   finishedAt: string | null;
   cards: Card[];
   storageSplit: string | null;
+  /** A sentence on where the bands come from, when the run has them. */
+  bandNote: string | null;
+  scenarios: {
+    rows: { label: string; dams: string; inundated: string; storage: string }[];
+    drowned: string[];
+    leftOut: { id: string; reason: string }[];
+  } | null;
+  uncertainty: {
+    draws: string;
+    seed: string | null;
+    method: string | null;
+    sources: { name: string; enabled: string; distribution: string; basis: string }[];
+    approximations: string[];
+    standardErrors: string | null;
+    tooFewDraws: boolean;
+  } | null;
   map: (MapFigure & { caption: string; maxWidthCss: string }) | null;
   mapMissing: string | null;
   watersheds: {
@@ -144,6 +162,51 @@ export function buildView(input: ReportInput): ReportView {
     mapMissing = 'This run folder has no report-map.json (written by pondage estimate), so the overview map is left out. Run the estimate again to get it.';
   }
 
+  const u = summary.uncertainty;
+  const bandNote = t.bands
+    ? `Bands run from the 5th to the 95th percentile${u ? ` of ${formatNumber(u.draws, 0)} Monte Carlo draws${u.seed !== null ? ` (seed ${u.seed})` : ''}` : ' of the run’s Monte Carlo draws'}; see Methods for their sources.`
+    : null;
+  const uncertainty = u
+    ? {
+        draws: formatNumber(u.draws, 0),
+        seed: u.seed !== null ? String(u.seed) : null,
+        method: u.method,
+        sources: u.sources.map((s) => ({ name: s.name, enabled: s.enabled ? 'on' : 'off', distribution: s.distribution, basis: s.basis })),
+        approximations: u.approximations,
+        standardErrors: u.p95StandardError.length > 0 ? u.p95StandardError.map(([k, v]) => `${k} ${formatNumber(v)}`).join(', ') : null,
+        tooFewDraws: u.tooFewDraws,
+      }
+    : null;
+  const sc = summary.scenarios;
+  const scenarios =
+    sc && (sc.withProposed.proposedCounted > 0 || sc.proposedLeftOut.length > 0)
+      ? {
+          rows: [
+            { label: 'Existing dams', key: 'existing', f: sc.existing, dams: sc.existing.damsCounted },
+            { label: 'With the proposed structures', key: 'with_proposed', f: sc.withProposed, dams: sc.withProposed.damsCounted },
+          ]
+            .map((r) => ({
+              label: r.label,
+              dams: fig(r.dams, `scenarios.${r.key}.dams_counted`, 'count'),
+              inundated: `${fig(r.f.inundatedAreaM2, `scenarios.${r.key}.inundated_area_m2`, 'ha')} <span class="us">${fig(r.f.inundatedAreaM2, `scenarios.${r.key}.inundated_area_m2`, 'acres')}</span>`,
+              storage: `${fig(r.f.storageM3, `scenarios.${r.key}.storage_m3`, 'm3')} <span class="us">${fig(r.f.storageM3, `scenarios.${r.key}.storage_m3`, 'acre_ft')}</span>`,
+            }))
+            .concat([
+              {
+                label: 'Added by the proposed structures',
+                dams: fig(sc.withProposed.proposedCounted, 'scenarios.with_proposed.proposed_counted', 'count'),
+                inundated: `${fig(sc.added.inundatedAreaM2, 'scenarios.added.inundated_area_m2', 'ha')} <span class="us">${fig(sc.added.inundatedAreaM2, 'scenarios.added.inundated_area_m2', 'acres')}</span>`,
+                storage: `${fig(sc.added.storageM3, 'scenarios.added.storage_m3', 'm3')} <span class="us">${fig(sc.added.storageM3, 'scenarios.added.storage_m3', 'acre_ft')}</span>`,
+              },
+            ]),
+          drowned: sc.drownedByProposed.map(
+            (d) =>
+              `${escape(d.id)} would stand under the pond of proposed ${escape(d.drownedBy)}: the water it holds goes from ${figU(d.volumeExistingM3, `scenarios.drowned_by_proposed[${d.index}].volume_existing_m3`, 'm3')} to ${figU(d.volumeWithProposedM3, `scenarios.drowned_by_proposed[${d.index}].volume_with_proposed_m3`, 'm3')}.`,
+          ),
+          leftOut: sc.proposedLeftOut,
+        }
+      : null;
+
   const watersheds = summary.watersheds && summary.watersheds.length > 0 ? watershedView(summary) : null;
   const damsView = damRows(summary);
   const av = areaVolumeChart(summary.dams);
@@ -166,13 +229,18 @@ export function buildView(input: ReportInput): ReportView {
   const groups = [...groupsMap.entries()].sort((a, b) => b[1].length - a[1].length || a[0].localeCompare(b[0])).map(([code, items]) => ({ code, count: items.length, items }));
 
   const firstInput = summary.inputs.find((i) => i.role === 'dem');
+  const pageTitle = `pondage report: ${formatNumber(t.damCount, 0)} dams${firstInput ? `, ${baseName(firstInput.path)}` : ''}`;
   return {
+    pageTitle: pageTitle.length > 70 ? `${pageTitle.slice(0, 69)}…` : pageTitle,
     title: 'Water stored behind beaver dams',
     subtitle: `${formatNumber(t.damCount, 0)} dams${firstInput ? ` on ${baseName(firstInput.path)}` : ''} · ${summary.dem.crsName}`,
     toolVersion: `${summary.tool.name} ${summary.tool.version}`,
     finishedAt: summary.run.finishedAt,
     cards,
     storageSplit,
+    bandNote,
+    scenarios,
+    uncertainty,
     map,
     mapMissing,
     watersheds,
@@ -238,13 +306,15 @@ function damRows(summary: RunSummary): ReportView['dams'] {
     const areaUs = own ? fig(d.standaloneAreaM2, `${f}.standalone_area_m2`, 'acres') : fig(d.areaM2, `${f}.area_m2`, 'acres');
     const vol = own ? fig(d.standaloneVolumeM3, `${f}.standalone_volume_m3`, 'm3') : fig(d.volumeM3, `${f}.volume_m3`, 'm3');
     const volUs = own ? fig(d.standaloneVolumeM3, `${f}.standalone_volume_m3`, 'acre_ft') : fig(d.volumeM3, `${f}.volume_m3`, 'acre_ft');
+    // Short notes; the full text of skip reasons and warnings is in the Warnings section.
     const notes: string[] = [];
-    if (!d.estimated) notes.push(`skipped: ${escape(d.skipReason ?? '')}`);
+    if (!d.estimated) notes.push('skipped: see <a href="#warnings">Warnings</a>');
     if (own) notes.push('own pond, not in the totals');
-    if (d.drownedBy) notes.push(`crest under the pond of ${escape(d.drownedBy)}`);
+    if (d.drownedBy) notes.push(`under the pond of ${escape(d.drownedBy)}`);
     const otherWarnings = d.warnings.filter((w) => !w.startsWith('crest under the pond of')).length;
     if (otherWarnings > 0) notes.push(`${otherWarnings} warning${otherWarnings > 1 ? 's' : ''}`);
-    const volBand = d.bands?.['volume_m3'];
+    const volBand = own ? d.bands?.['standalone_volume_m3'] : d.bands?.['volume_m3'];
+    const bandField = own ? `${f}.bands.standalone_volume_m3` : `${f}.bands.volume_m3`;
     return {
       id: escape(d.id),
       anchor: `dam-${slug(d.id)}`,
@@ -260,7 +330,7 @@ function damRows(summary: RunSummary): ReportView['dams'] {
       areaUs: d.estimated ? areaUs : '',
       volume: d.estimated ? vol : '–',
       volumeUs: d.estimated ? volUs : '',
-      band: volBand ? `${fig(volBand.p05, `${f}.bands.volume_m3.p05`, 'm3')} – ${fig(volBand.p95, `${f}.bands.volume_m3.p95`, 'm3')}` : null,
+      band: volBand ? `${fig(volBand.p05, `${bandField}.p05`, 'm3')} – ${fig(volBand.p95, `${bandField}.p95`, 'm3')}` : '–',
       below: d.volumeBelowSurfaceM3 !== null ? fig(d.volumeBelowSurfaceM3, `${f}.volume_below_surface_m3`, 'm3') : null,
       influence: d.influenceAreaM2 !== null ? fig(d.influenceAreaM2, `${f}.influence_area_m2`, 'ha') : null,
       watershed: d.watershed !== null ? escape(d.watershed) : null,
