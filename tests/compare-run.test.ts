@@ -6,6 +6,7 @@
 import { mkdir, mkdtemp, readFile, readdir, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { HtmlValidate } from 'html-validate';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runCompare } from '../src/cli/compare-command.js';
 import type { Comparison } from '../src/compare/compare.js';
@@ -116,6 +117,9 @@ describe('storage change between runs', () => {
     expect(Number(total.fields[header.indexOf('storage_change_m3')])).toBeCloseTo(json.totals.storage_change_m3, 3);
     expect(csv.filter((r) => r.fields[header.indexOf('scope')] === 'dam')).toHaveLength(json.dams.length);
     const html = await readFile(join(out, 'compare.html'), 'utf8');
+    // Valid HTML by html-validate's recommended rules (a general-purpose validator).
+    const report = await new HtmlValidate({ extends: ['html-validate:recommended'] }).validateString(html);
+    expect(report.results.flatMap((r) => r.messages.map((m) => `${m.line}:${m.column} ${m.ruleId}: ${m.message}`))).toEqual([]);
     expect(html).toContain('data:image/png;base64,');
     expect(html).not.toMatch(/https?:\/\/(?!www\.w3\.org\/2000\/svg)/); // self-contained: no link but the SVG namespace
   });

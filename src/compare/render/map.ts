@@ -121,10 +121,20 @@ export function classLegend(): { name: string; colour: string }[] {
   return CHANGE_CLASSES.map((name, k) => ({ name, colour: hexOf(CLASS_RGBA[k]!) })).filter((_, k) => k !== 0);
 }
 
+/** A legend swatch: the class's marker in a small inline SVG. */
+export function damSwatch(change: DamChange['change']): string {
+  const shape = markShape(change, 7, 7, 5, '');
+  return `<svg class="swatch" width="14" height="14" viewBox="0 0 14 14" aria-hidden="true">${shape}</svg>`;
+}
+
 /** A dam marker: shape and colour by class, with its id and change as a tooltip. */
 export function marker(d: DamChange, x: number, y: number, r: number): string {
-  const m = DAM_MARK[d.change];
   const title = `<title>${esc(`${d.id}: ${d.change}${d.reasons.length > 0 ? ` (${d.reasons.join(', ')})` : ''}`)}</title>`;
+  return markShape(d.change, x, y, r, title);
+}
+
+function markShape(change: DamChange['change'], x: number, y: number, r: number, title: string): string {
+  const m = DAM_MARK[change];
   const style = `fill="${m.colour}" stroke="#ffffff" stroke-width="${(r / 4).toFixed(2)}"`;
   const f = (v: number): string => v.toFixed(1);
   switch (m.shape) {

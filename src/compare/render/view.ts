@@ -9,7 +9,7 @@ import type { ChangeRaster } from '../change-map.js';
 import type { Comparison, RunOverview } from '../compare.js';
 import { DEFAULT_DEM_RMSE_M } from '../lod.js';
 import type { DamChangeClass } from '../match.js';
-import { changeMapSvg, classLegend, cropToContent } from './map.js';
+import { changeMapSvg, classLegend, cropToContent, damSwatch } from './map.js';
 import { BAR, DAM_MARK } from './palette.js';
 import { barChart, fmt, fmtSigned, type Bar } from './svg.js';
 
@@ -21,7 +21,7 @@ export interface CompareView {
   runs: { label: string; dir: string; dem: string; rmse: string; draws: string; storage: string; area: string; dams: string }[];
   headline: { name: string; value: string; sub: string; band: string; verdict: string; verdictClass: string }[];
   bandsNote: string;
-  map: { svg: string; legend: { name: string; colour: string }[]; dams: { name: string; colour: string; shape: string }[]; caption: string } | null;
+  map: { svg: string; legend: { name: string; colour: string }[]; dams: { name: string; swatch: string }[]; caption: string } | null;
   mapNote: string;
   charts: { totals: string; counts: string; topDams: string | null; watersheds: string | null; proposed: string | null };
   damCounts: { name: string; count: number }[];
@@ -127,7 +127,7 @@ export function compareView(c: Comparison, raster: ChangeRaster | null, unitM: n
     proposedBars.push({ label: `${r.label} + proposed`, value: r.proposed.with_proposed.storage_m3, band: bw ? { lo: bw.p05, hi: bw.p95 } : null, colour: BAR.proposed });
   }
 
-  const map = raster ? { svg: changeMapSvg(raster, c.dams, unitM), legend: classLegend(), dams: classes.map((k) => ({ name: DAM_MARK[k].label, colour: DAM_MARK[k].colour, shape: DAM_MARK[k].shape })), caption: mapCaption(c, cropToContent(raster, c.dams)) } : null;
+  const map = raster ? { svg: changeMapSvg(raster, c.dams, unitM), legend: classLegend(), dams: classes.map((k) => ({ name: DAM_MARK[k].label, swatch: damSwatch(k) })), caption: mapCaption(c, cropToContent(raster, c.dams)) } : null;
 
   return {
     title: `pondage comparison: ${from} → ${to}`,
