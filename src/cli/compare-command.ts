@@ -37,7 +37,8 @@ export async function runCompare(job: CompareJob): Promise<Comparison> {
   if (dup !== undefined) throw new InputError(`two runs are both called "${dup}"; name them with --labels, e.g. --labels 2019,2024`);
   const { comparison, rasters } = compareRuns(runs, { match: job.match ?? DEFAULT_MATCH, ...(job.demRmseM ? { demRmseM: job.demRmseM } : {}) });
   const last = runs[runs.length - 1]!.record;
-  await writeCompareFolder(job.outDir, comparison, { raster: rasters[0] ?? null, unitM: last.dem.crsUnitM, version: TOOL_VERSION });
+  const backdrop = runs[runs.length - 1]!.backdrop ?? runs[0]!.backdrop ?? null;
+  await writeCompareFolder(job.outDir, comparison, { raster: rasters[0] ?? null, unitM: last.dem.crsUnitM, version: TOOL_VERSION, backdrop });
   return comparison;
 }
 

@@ -25,6 +25,16 @@ export interface DepthRaster {
   data: Float32Array;
 }
 
+/** A shaded-relief image to draw under the change map (a run's report-map.json hillshade). */
+export interface Backdrop {
+  /** CRS of the extent (proj4 text); drawn only under rasters of the same CRS. */
+  crsKey: string;
+  /** Extent the image covers, in CRS units. */
+  extent: { xmin: number; ymin: number; xmax: number; ymax: number };
+  /** The image, PNG as base64. */
+  pngBase64: string;
+}
+
 /** Cell classes of the change map, in the order of their codes 0…5. */
 export const CHANGE_CLASSES = ['dry', 'new water', 'water gone', 'deeper', 'shallower', 'wet, no detectable change'] as const;
 export const CLASS_DRY = 0;
@@ -39,6 +49,8 @@ export interface ChangeRaster {
   width: number;
   height: number;
   transform: GeoTransform;
+  /** CRS of the frame (proj4 text), as in DepthRaster. */
+  crsKey: string;
   /** Class code per cell (CLASS_*). */
   classes: Uint8Array;
 }
@@ -135,7 +147,7 @@ export function changeMap(a: DepthRaster | null, b: DepthRaster | null, threshol
       storage_change_above_threshold_m3: dStorageAbove,
       inundated_area_change_m2: wetB - wetA,
     },
-    raster: { width, height, transform: { x0: t.x0 + col0 * t.dx, y0: t.y0 + row0 * t.dy, dx: t.dx, dy: t.dy }, classes },
+    raster: { width, height, transform: { x0: t.x0 + col0 * t.dx, y0: t.y0 + row0 * t.dy, dx: t.dx, dy: t.dy }, crsKey: a.crsKey, classes },
   };
 }
 

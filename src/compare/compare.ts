@@ -17,7 +17,7 @@ import {
   quadratureDifferenceBand,
   type BandMethod,
 } from './bands.js';
-import { changeMap, type ChangeMapFigures, type ChangeRaster, type DepthRaster, type NoChangeMap } from './change-map.js';
+import { changeMap, type Backdrop, type ChangeMapFigures, type ChangeRaster, type DepthRaster, type NoChangeMap } from './change-map.js';
 import { drawSeries, type DrawScope, type DrawTable } from './draws.js';
 import { demDifference, sameDem, type DemDifference } from './lod.js';
 import { DEFAULT_MATCH, matchDams, type ChangeReason, type DamChangeClass, type MatchOptions } from './match.js';
@@ -32,6 +32,8 @@ export interface RunInput {
   draws: DrawTable | null;
   /** Water depth (depth.tif), or null. */
   depth: DepthRaster | null;
+  /** Shaded relief for the map (report-map.json), or null. */
+  backdrop?: Backdrop | null;
 }
 
 /** Options of a comparison. */

@@ -1,12 +1,14 @@
 /**
  * Reads the run folders that `pondage compare` compares: summary.json (into a
  * RunRecord), draws.csv when the run kept its per-draw figures (format in
- * compare/draws.ts) and depth.tif when the run has ponds.
+ * compare/draws.ts), depth.tif when the run has ponds, and the hillshade of
+ * report-map.json for the map's relief.
  */
 import { readFile, stat } from 'node:fs/promises';
 import { basename, join, resolve } from 'node:path';
 import { InputError } from '../errors.js';
-import type { DepthRaster } from '../compare/change-map.js';
+import type { Backdrop, DepthRaster } from '../compare/change-map.js';
+import { parseReportMap, REPORT_MAP_FILE } from '../report/map-file.js';
 import type { RunInput } from '../compare/compare.js';
 import { addWatershedSums, drawKey, type DrawScope, type DrawTable } from '../compare/draws.js';
 import { parseRunSummary } from '../compare/run-record.js';
@@ -36,7 +38,19 @@ export async function readRunFolder(dir: string, label?: string): Promise<RunInp
   const draws = (await exists(join(dir, RUN_FILES.draws))) ? parseDrawsCsv(await readFile(join(dir, RUN_FILES.draws), 'utf8'), join(dir, RUN_FILES.draws)) : null;
   if (draws && record.watersheds) addWatershedSums(draws, record.dams);
   const depth = (await exists(join(dir, RUN_FILES.depth))) ? await readDepth(join(dir, RUN_FILES.depth)) : null;
-  return { record, draws, depth };
+  return { record, draws, depth, backdrop: await readBackdrop(join(dir, REPORT_MAP_FILE)) };
+}
+
+/** The hillshade of a run's report-map.json, or null when the file or its hillshade is missing or unreadable (the map then has none). */
+export async function readBackdrop(path: string): Promise<Backdrop | null> {
+  if (!(await exists(path))) return null;
+  try {
+    const map = parseReportMap(await readFile(path, 'utf8'), path);
+    return map.hillshade ? { crsKey: map.crs.proj4, extent: map.extent, pngBase64: map.hillshade.pngBase64 } : null;
+  } catch (err) {
+    if (err instanceof InputError) return null;
+    throw err;
+  }
 }
 
 /** Reads depth.tif (metres, NoData → NaN) with its frame and cell areas. */

@@ -6,7 +6,7 @@
 import { readFile, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import type { ChangeRaster } from '../compare/change-map.js';
+import type { Backdrop, ChangeRaster } from '../compare/change-map.js';
 import type { Comparison } from '../compare/compare.js';
 import { renderCompareHtml } from '../compare/render/html.js';
 import { compareView } from '../compare/render/view.js';
@@ -45,11 +45,12 @@ export async function readCompareTemplates(): Promise<{ page: string; css: strin
 
 /**
  * Writes the comparison folder at `outDir`. `raster` is the first→last change
- * raster (null: no map); `unitM` metres per map unit of its CRS.
+ * raster (null: no map); `unitM` metres per map unit of its CRS; `backdrop`
+ * the relief drawn under it.
  */
-export async function writeCompareFolder(outDir: string, c: Comparison, extras: { raster: ChangeRaster | null; unitM: number | null; version: string }): Promise<void> {
+export async function writeCompareFolder(outDir: string, c: Comparison, extras: { raster: ChangeRaster | null; unitM: number | null; version: string; backdrop?: Backdrop | null }): Promise<void> {
   const templates = await readCompareTemplates();
-  const html = renderCompareHtml(compareView(c, extras.raster, extras.unitM), templates, `${TOOL_NAME} ${extras.version}`);
+  const html = renderCompareHtml(compareView(c, extras.raster, extras.unitM, extras.backdrop ?? null), templates, `${TOOL_NAME} ${extras.version}`);
   const table = compareTable(c);
   await writeFolderAtomically(
     outDir,

@@ -5,7 +5,7 @@
  * with a scale bar and a north arrow (the grids are north-up).
  */
 import { encode } from 'fast-png';
-import { CHANGE_CLASSES, type ChangeRaster } from '../change-map.js';
+import { CHANGE_CLASSES, type Backdrop, type ChangeRaster } from '../change-map.js';
 import type { DamChange } from '../compare.js';
 import { CLASS_PRIORITY, CLASS_RGBA, DAM_MARK, hexOf } from './palette.js';
 import { esc, fmt } from './svg.js';
@@ -85,14 +85,14 @@ export function cropToContent(raster: ChangeRaster, dams: readonly DamChange[]):
   const h = r1 - r0 + 1;
   const out = new Uint8Array(w * h);
   for (let row = 0; row < h; row++) out.set(classes.subarray((row + r0) * width + c0, (row + r0) * width + c0 + w), row * w);
-  return { width: w, height: h, transform: { x0: t.x0 + c0 * t.dx, y0: t.y0 + r0 * t.dy, dx: t.dx, dy: t.dy }, classes: out };
+  return { width: w, height: h, transform: { x0: t.x0 + c0 * t.dx, y0: t.y0 + r0 * t.dy, dx: t.dx, dy: t.dy }, crsKey: raster.crsKey, classes: out };
 }
 
 /** Cells of margin kept around the drawn content, at least. */
 export const MAP_MARGIN_CELLS = 20;
 
 /** The change map SVG, cropped to its content; `unitM` is metres per map unit of the rasters' CRS (null: no scale bar). */
-export function changeMapSvg(full: ChangeRaster, dams: readonly DamChange[], unitM: number | null): string {
+export function changeMapSvg(full: ChangeRaster, dams: readonly DamChange[], unitM: number | null, backdrop: Backdrop | null = null): string {
   const raster = cropToContent(full, dams);
   const img = reduceClasses(raster);
   const png = Buffer.from(classesPng(img)).toString('base64');
@@ -102,6 +102,14 @@ export function changeMapSvg(full: ChangeRaster, dams: readonly DamChange[], uni
   const parts: string[] = [];
   parts.push(`<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 ${w} ${h}" class="map" role="img" aria-label="Change map">`);
   parts.push(`<rect x="0" y="0" width="${w}" height="${h}" class="map-ground"/>`);
+  if (backdrop) {
+    // The relief under the water, placed by its extent in the same CRS (the SVG clips it to the map).
+    const bx = (backdrop.extent.xmin - t.x0) / t.dx / factor;
+    const by = (backdrop.extent.ymax - t.y0) / t.dy / factor;
+    const bw = (backdrop.extent.xmax - backdrop.extent.xmin) / Math.abs(t.dx) / factor;
+    const bh = (backdrop.extent.ymax - backdrop.extent.ymin) / Math.abs(t.dy) / factor;
+    parts.push(`<image x="${bx.toFixed(2)}" y="${by.toFixed(2)}" width="${bw.toFixed(2)}" height="${bh.toFixed(2)}" preserveAspectRatio="none" opacity="0.55" href="data:image/png;base64,${backdrop.pngBase64}"/>`);
+  }
   parts.push(`<image x="0" y="0" width="${w}" height="${h}" preserveAspectRatio="none" style="image-rendering:pixelated" href="data:image/png;base64,${png}"/>`);
   for (const d of dams) {
     if (d.crest_x === null || d.crest_y === null) continue;

@@ -14,7 +14,7 @@ export const CLASS_RGBA: readonly (readonly [number, number, number, number])[] 
   [213, 94, 0, 255], // water gone: vermillion
   [86, 180, 233, 255], // deeper: sky blue
   [230, 159, 0, 255], // shallower: orange
-  [190, 190, 190, 255], // wet, no detectable change: grey
+  [95, 110, 125, 255], // wet, no detectable change: slate grey (reads on the relief)
 ];
 
 /** Drawing priority of the classes when several cells share a map pixel (higher wins). */

@@ -5,7 +5,7 @@
 import { CAUTIONS } from '../../pipeline/cautions.js';
 import { m2ToAcres, m2ToHectares, m3ToAcreFeet } from '../../units.js';
 import type { BandStats } from '../run-record.js';
-import type { ChangeRaster } from '../change-map.js';
+import type { Backdrop, ChangeRaster } from '../change-map.js';
 import type { Comparison, RunOverview } from '../compare.js';
 import { DEFAULT_DEM_RMSE_M } from '../lod.js';
 import type { DamChangeClass } from '../match.js';
@@ -62,7 +62,7 @@ function verdictOf(detectable: boolean | null | undefined): { verdict: string; v
 }
 
 /** Builds the page's view of a comparison; `raster` is the change raster of the first→last pair, `unitM` metres per CRS unit. */
-export function compareView(c: Comparison, raster: ChangeRaster | null, unitM: number | null): CompareView {
+export function compareView(c: Comparison, raster: ChangeRaster | null, unitM: number | null, backdrop: Backdrop | null = null): CompareView {
   const t = c.totals;
   const from = c.runs[0]!.label;
   const to = c.runs[c.runs.length - 1]!.label;
@@ -127,7 +127,8 @@ export function compareView(c: Comparison, raster: ChangeRaster | null, unitM: n
     proposedBars.push({ label: `${r.label} + proposed`, value: r.proposed.with_proposed.storage_m3, band: bw ? { lo: bw.p05, hi: bw.p95 } : null, colour: BAR.proposed });
   }
 
-  const map = raster ? { svg: changeMapSvg(raster, c.dams, unitM), legend: classLegend(), dams: classes.map((k) => ({ name: DAM_MARK[k].label, swatch: damSwatch(k) })), caption: mapCaption(c, cropToContent(raster, c.dams)) } : null;
+  const relief = backdrop && raster && backdrop.crsKey === raster.crsKey ? backdrop : null;
+  const map = raster ? { svg: changeMapSvg(raster, c.dams, unitM, relief), legend: classLegend(), dams: classes.map((k) => ({ name: DAM_MARK[k].label, swatch: damSwatch(k) })), caption: mapCaption(c, cropToContent(raster, c.dams)) } : null;
 
   return {
     title: `pondage comparison: ${from} → ${to}`,
