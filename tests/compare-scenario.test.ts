@@ -7,8 +7,12 @@ import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { DamResult } from '../src/pipeline/result.js';
+import { ScenarioTally } from '../src/pipeline/scenarios.js';
 import type { Summary } from '../src/pipeline/summary.js';
+import { pondStats } from '../src/ponds/stage-storage.js';
 import { analyticVolumeM3, crest, runValley, VALLEY, writeValleyDem } from './helpers/compare-runs.js';
+import { fillDam, makeDam, vValley } from './helpers/synthetic.js';
 
 let dir: string;
 let summary: Summary;
@@ -81,5 +85,41 @@ describe('scenarios: existing and with proposed structures', () => {
     expect(solo.crest_lon!).toBeLessThan(-108);
     expect(solo.crest_lon!).toBeGreaterThan(-112); // UTM 12N spans 114°W–108°W; easting 500 000 is its central meridian 111°W
     expect(solo.crest_lon!).toBeCloseTo(-111, 4);
+  });
+});
+
+describe('scenario tally on one window', () => {
+  // V valley (M = 10, S = 0.01) on a 0.5 m grid: an existing dam whose pond already held water
+  // (60 m³ below its lidar surface, as the water-surface stage would record it) and a proposed
+  // dam 20 m downstream that drowns it.
+  const frame = { width: 120, height: 400, cellM: 0.5, damRow: 360 };
+  const grid = vValley(frame, 10, 0.01, 100);
+  const old = makeDam({ id: 'old', lines: [[[-25, 0], [25, 0]]], heightM: 0.6 });
+  const plan = makeDam({ id: 'plan', lines: [[[-25, -15], [25, -15]]], heightM: 1.0, status: 'proposed', index: 1 });
+  const fo = fillDam(grid, old).fill;
+  const fp = fillDam(grid, plan).fill;
+
+  function result(id: string, status: DamResult['status'], inTotals: boolean, volumeM3: number, belowM3: number): DamResult {
+    return {
+      id, status, confidence: null, year: null, crest_geometry: 'line', in_totals: inTotals, estimated: true, skip_reason: null,
+      crest_elev_m: null, bed_elev_m: null, height_m: null, height_source: 'measured', upstream_side: null, upstream_source: null,
+      water_level_m: null, limited_by: 'crest', area_m2: 0, volume_m3: volumeM3, max_depth_m: 0, mean_depth_m: 0,
+      standalone_area_m2: 0, standalone_volume_m3: 0, drowned_by: null, crest_length_m: null, cells_visited: 0,
+      stage_storage: [], warnings: [], properties: {}, volume_below_surface_m3: belowM3,
+    };
+  }
+
+  it('keeps water below an existing lidar surface in the with-proposed storage, once', () => {
+    const aboveOld = pondStats(grid, fo).volumeM3;
+    const r0 = result('old', 'confirmed', true, aboveOld + 60, 60);
+    const r1 = result('plan', 'proposed', false, 0, 0);
+    const tally = new ScenarioTally(2);
+    tally.addGroup(grid, [{ index: 0, result: r0, fill: fo }, { index: 1, result: r1, fill: fp }]);
+    const s = tally.finish([r0, r1], { dam_count: 2, dams_estimated: 2, dams_skipped: 0, dams_in_totals: 1, inundated_area_m2: 0, storage_m3: r0.volume_m3 });
+    // The union of the two ponds is plan's own pond (it holds old's), plus the 60 m³ under old's surface.
+    const union = pondStats(grid, fp).volumeM3;
+    expect(s.with_proposed.storage_m3 / (union + 60)).toBeCloseTo(1, 9);
+    expect(s.added.storage_m3 / (union - aboveOld)).toBeCloseTo(1, 9);
+    expect(s.drowned_by_proposed.map((d) => [d.id, d.drowned_by])).toEqual([['old', 'plan']]);
   });
 });
