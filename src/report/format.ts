@@ -34,11 +34,19 @@ export function decimalsFor(value: number): number {
   return Math.min(6, Math.max(0, 2 - Math.floor(Math.log10(a))));
 }
 
+/** One formatter per number of decimals (building an Intl.NumberFormat per call is slow). */
+const FORMATTERS = new Map<number, Intl.NumberFormat>();
+
 /** A number with thousands separators and the report's precision (or the given decimals). */
 export function formatNumber(value: number, decimals?: number): string {
   if (!Number.isFinite(value)) return '–';
   const d = decimals ?? decimalsFor(value);
-  const text = value.toLocaleString('en-US', { minimumFractionDigits: d, maximumFractionDigits: d });
+  let f = FORMATTERS.get(d);
+  if (!f) {
+    f = new Intl.NumberFormat('en-US', { minimumFractionDigits: d, maximumFractionDigits: d });
+    FORMATTERS.set(d, f);
+  }
+  const text = f.format(value);
   return text === '-0' ? '0' : text;
 }
 

@@ -26,6 +26,8 @@ const FRAME_TALL = 780;
 const MARGIN = { left: 78, right: 14, top: 14, bottom: 52 };
 /** Outlines are simplified to this many SVG units (about a third of a pixel on a full-width A4 page). */
 const SIMPLIFY_TOLERANCE = 0.35;
+/** Largest length of a degree of latitude on the WGS 84 ellipsoid, metres (at the poles; about 111.7 km). */
+const METRES_PER_DEGREE_LAT_MAX = 111_700;
 /** Largest ponds labelled with their dam id. */
 const LABELLED_PONDS = 12;
 
@@ -79,10 +81,15 @@ export function buildMapFigure(map: ReportMap, dams: readonly RunDam[], layers: 
     linearUnit: map.crs.unit === 'foot' || map.crs.unit === 'us-survey-foot' || map.crs.unit === 'metre' ? map.crs.unit : null,
   };
   const fromLonLat = makeTransform(WGS84, crs);
+  // Outlines are thinned in lon/lat first (to a tolerance that is smaller on the ground than the
+  // map's in every direction: a degree of longitude is never longer than one of latitude), so
+  // only the vertices that can show are projected.
+  const preToleranceDeg = (SIMPLIFY_TOLERANCE / k) / 2 / METRES_PER_DEGREE_LAT_MAX;
   const project = (pts: readonly [number, number][]): [number, number][] => {
-    const out: [number, number][] = new Array(pts.length);
-    for (let i = 0; i < pts.length; i++) {
-      const [x, y] = fromLonLat(pts[i]![0], pts[i]![1]);
+    const thin = pts.length > 8 ? simplify(pts as [number, number][], preToleranceDeg) : pts;
+    const out: [number, number][] = new Array(thin.length);
+    for (let i = 0; i < thin.length; i++) {
+      const [x, y] = fromLonLat(thin[i]![0], thin[i]![1]);
       out[i] = [sx(x), sy(y)];
     }
     return out;
