@@ -70,6 +70,8 @@ export interface ChangeMapFigures {
   storage_change_above_threshold_m3: number;
   /** Wet area of B minus wet area of A, m². */
   inundated_area_change_m2: number;
+  /** What the rasters leave out, when anything (e.g. water below lidar water surfaces). */
+  note?: string;
 }
 
 /** Why there is no change map. */

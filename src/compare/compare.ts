@@ -390,6 +390,13 @@ function comparePair(
   const ws = watershedChanges(a, b, pairInfo.paired);
   const dem = demDifference(ra, rb, sigma);
   const map = changeMap(a.depth, b.depth, dem.lod95_m ?? 0);
+  const belowA = ra.totals.storage_below_surface_m3 ?? 0;
+  const belowB = rb.totals.storage_below_surface_m3 ?? 0;
+  if (map.available && (belowA > 0 || belowB > 0)) {
+    map.figures.note =
+      `depth.tif holds the water above today's lidar water surfaces; the water below them (${Math.round(belowA)} m³ in ${ra.label}, ${Math.round(belowB)} m³ in ${rb.label}) ` +
+      'is in the storage figures but not on the map, so the map sums to the change of the water above the surfaces.';
+  }
   return {
     pair: {
       from: ra.label,

@@ -104,6 +104,8 @@ export interface RunRecord {
     /** Stream length and valley-bottom area of the whole run, when stated. */
     stream_length_m: number | null;
     valley_bottom_area_m2: number | null;
+    /** Water below today's lidar water surfaces, in the totals but not in depth.tif, m³ (null: not reported). */
+    storage_below_surface_m3: number | null;
     bands: Bands | null;
   };
   dams: RunDam[];
@@ -156,6 +158,7 @@ export function parseRunSummary(json: unknown, file: string, label: string, dir:
       influence_area_m2: num(totals['influence_area_m2']),
       stream_length_m: num(totals['stream_length_m']),
       valley_bottom_area_m2: num(totals['valley_bottom_area_m2']),
+      storage_below_surface_m3: num(totals['storage_below_surface_m3']),
       bands: parseBands(totals['bands']),
     },
     dams,

@@ -234,7 +234,8 @@ function mapCaption(c: Comparison, raster: ChangeRaster): string {
     (m.threshold_m > 0 ? `; depth changes under ${fmt(m.threshold_m, 3)} m (LoD95) are not called changes` : '') +
     `. Σ depth change × cell area ${fmtSigned(m.storage_change_m3)} m³` +
     (m.threshold_m > 0 ? `, above the LoD ${fmtSigned(m.storage_change_above_threshold_m3)} m³` : '') +
-    `. Extent in the DEM's CRS: x ${fmt(Math.min(t.x0, x1), 1)}–${fmt(Math.max(t.x0, x1), 1)}, y ${fmt(Math.min(t.y0, y1), 1)}–${fmt(Math.max(t.y0, y1), 1)}.`
+    `. Extent in the DEM's CRS: x ${fmt(Math.min(t.x0, x1), 1)}–${fmt(Math.max(t.x0, x1), 1)}, y ${fmt(Math.min(t.y0, y1), 1)}–${fmt(Math.max(t.y0, y1), 1)}.` +
+    (m.note ? ` Note: ${m.note}` : '')
   );
 }
 
