@@ -30,7 +30,7 @@ export function addDemoCommand(program: Command): void {
       if (!flags.quiet) process.stdout.write(text);
     };
     say(`generating the fictional valley (seed ${seed})…\n`);
-    const scene = generateDemoValley({ seed });
+    const scene = generateDemoValley({ seed, waterSurfaces: true });
     const inputs = await writeSceneInputs(join(flags.out, 'inputs'), scene);
     say(`wrote ${inputs.demPath} (${scene.width} × ${scene.height} cells of ${scene.cellM} m) and ${inputs.damsPath} (${scene.dams.length} dams)\n\n`);
     const outDir = join(flags.out, 'results');

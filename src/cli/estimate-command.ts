@@ -6,9 +6,10 @@ import type { EstimateParams } from '../pipeline/estimate.js';
 import { parseLengthM, parseNumber } from './options.js';
 import { progressBar } from './progress.js';
 import { runTable } from './table.js';
+import { addWaterModelOptions, waterParamsFromFlags, type WaterModelFlags } from './water-options.js';
 
 /** Flags shared by every command that runs an estimate (estimate, demo). */
-export interface ParamFlags {
+export interface ParamFlags extends WaterModelFlags {
   defaultHeight?: string;
   maxReach?: string;
   stageStep?: string;
@@ -20,7 +21,7 @@ export interface ParamFlags {
 /** Adds the estimate parameters' flags to a command; the option text is the CLI reference. */
 export function addParamOptions(cmd: Command): Command {
   const d = defaultParams();
-  return cmd
+  return addWaterModelOptions(cmd)
     .option('--default-height <length>', `crest height above the bed for dams with no measured height that do not stand out in the DEM (m, or add ft / us-ft)`, `${DEFAULT_POND_PARAMS.defaultHeightM}`)
     .option('--max-reach <length>', 'largest distance a pond may reach from its crest; ponds that reach it are flagged "edge" (m)', `${d.maxReachM}`)
     .option('--stage-step <length>', 'level step of the stage–area–storage curves (m)', `${DEFAULT_POND_PARAMS.stageStepM}`)
@@ -38,6 +39,7 @@ export function paramsFromFlags(flags: ParamFlags): EstimateParams {
   if (flags.maxCrestLength !== undefined) p.maxCrestLengthM = parseLengthM(flags.maxCrestLength, '--max-crest-length', { min: 1, max: 5000 });
   if (flags.snapRadius !== undefined) p.snapRadiusM = parseLengthM(flags.snapRadius, '--snap-radius', { min: 0, max: 500 });
   if (flags.minConfidence !== undefined) p.minConfidence = parseNumber(flags.minConfidence, '--min-confidence', { min: 0, max: 1 });
+  p.water = waterParamsFromFlags(flags, p);
   return p;
 }
 
@@ -48,6 +50,8 @@ interface EstimateFlags extends ParamFlags {
   demCrs?: string;
   damsCrs?: string;
   zUnits?: string;
+  waterMask?: string;
+  bedDem?: string;
   quiet?: boolean;
 }
 
@@ -61,6 +65,8 @@ export function addEstimateCommand(program: Command): void {
     .option('--dem-crs <crs>', "the DEM's CRS when its GeoKeys lack or misstate it (EPSG:26911 or a proj4 string)")
     .option('--dams-crs <crs>', 'CRS of projected dam coordinates (default: lon/lat WGS 84 as RFC 7946 asks)')
     .option('--z-units <unit>', 'vertical unit of the DEM values: m, ft, us-ft (default: from the GeoKeys, else the horizontal unit)')
+    .option('--water-mask <file>', "today's water as a GeoTIFF (non-zero cells) or GeoJSON polygons, on the DEM's CRS or lon/lat; replaces finding water surfaces in the DEM")
+    .option('--bed-dem <file>', "DEM of the bed under today's water (before the dams, a drained year, a bathymetry survey), in the DEM's CRS; used where it has data")
     .option('-q, --quiet', 'print nothing but errors');
   addParamOptions(cmd).action(async (flags: EstimateFlags) => {
     const params = paramsFromFlags(flags);
@@ -72,6 +78,8 @@ export function addEstimateCommand(program: Command): void {
         demCrs: flags.demCrs,
         damsCrs: flags.damsCrs,
         zUnits: flags.zUnits,
+        waterMaskPath: flags.waterMask,
+        bedDemPath: flags.bedDem,
         outDir: flags.out,
         params,
         ...(bar.onProgress ? { progress: bar.onProgress } : {}),

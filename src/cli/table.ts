@@ -5,7 +5,7 @@ import { m3ToAcreFeet, m2ToAcres } from '../units.js';
 /** Formats a fixed-width table of the dams and the totals. */
 export function runTable(summary: Summary, options: { maxRows?: number } = {}): string {
   const maxRows = options.maxRows ?? 40;
-  const head = ['dam', 'status', 'height m', 'from', 'level by', 'area m²', 'volume m³', 'acre-ft'];
+  const head = ['dam', 'status', 'height m', 'from', 'level by', 'area m²', 'volume m³', 'below surface m³', 'acre-ft'];
   const rows = summary.dams.slice(0, maxRows).map((d) => [
     d.id,
     d.status + (d.estimated && !d.in_totals ? '*' : ''),
@@ -14,6 +14,7 @@ export function runTable(summary: Summary, options: { maxRows?: number } = {}): 
     d.estimated ? (d.limited_by ?? '-') : 'skipped',
     d.estimated ? fmt(d.in_totals ? d.area_m2 : d.standalone_area_m2, 0) : '-',
     d.estimated ? fmt(d.in_totals ? d.volume_m3 : d.standalone_volume_m3, 1) : '-',
+    d.in_totals && (d.water_surface_area_m2 ?? 0) > 0 ? fmt(d.volume_below_surface_m3 ?? 0, 1) : '-',
     d.estimated ? m3ToAcreFeet(d.in_totals ? d.volume_m3 : d.standalone_volume_m3).toFixed(3) : '-',
   ]);
   const widths = head.map((h, k) => Math.max(h.length, ...rows.map((r) => r[k]!.length)));
@@ -27,6 +28,12 @@ export function runTable(summary: Summary, options: { maxRows?: number } = {}): 
       `inundated ${fmt(t.inundated_area_m2, 0)} m² (${m2ToAcres(t.inundated_area_m2).toFixed(2)} acres), ` +
       `storage ${fmt(t.storage_m3, 0)} m³ (${m3ToAcreFeet(t.storage_m3).toFixed(2)} acre-ft)`,
   );
+  if ((t.dams_with_water_surface ?? 0) > 0) {
+    out.push(
+      `of which ${fmt(t.storage_above_surface_m3 ?? 0, 0)} m³ above today's water surfaces and ${fmt(t.storage_below_surface_m3 ?? 0, 0)} m³ below them ` +
+        `(${t.dams_with_water_surface} ponds hold water today, ${fmt(t.water_surface_area_m2 ?? 0, 0)} m² of it; water below a surface: ${summary.parameters['below_model'] ?? 'model'}, see bed_source)`,
+    );
+  }
   out.push('* not in the totals (proposed, or a candidate below --min-confidence): its own pond is shown.');
   return out.join('\n') + '\n';
 }

@@ -30,7 +30,7 @@ import { crestLocation } from './crest-location.js';
 import { ScenarioTally, type Scenarios } from './scenarios.js';
 import type { UncertaintyParams } from '../uncertainty/params.js';
 import { createDrawPrep, type DrawInputs, type DrawPrep } from '../uncertainty/prepare.js';
-import { WaterStage, defaultWaterRunParams, type WaterRunParams, type WaterWindowSource } from './water-stage.js';
+import { WaterStage, effectiveWaterParams, type WaterRunParams, type WaterWindowSource } from './water-stage.js';
 
 /** Run-level parameters beyond the pond engine's own. */
 export interface EstimateParams {
@@ -90,7 +90,7 @@ export async function estimatePonds(
   waterSource?: WaterWindowSource | null,
 ): Promise<EstimateResult> {
   const warnings: Warning[] = [];
-  const water = new WaterStage(params.water ?? defaultWaterRunParams(), waterSource ?? null);
+  const water = new WaterStage(effectiveWaterParams(params), waterSource ?? null);
   const cellM = demCellSizeM(dem);
   const toLonLat = makeTransform(dem.crs, WGS84);
   const work: Working[] = dams.map((dam) => {

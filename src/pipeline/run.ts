@@ -3,6 +3,7 @@
  * a folder that appears only when everything succeeded.
  */
 import { writeFolderAtomically } from '../io/run-folder.js';
+import { openWaterInputs, type WaterInputs } from '../io/water-inputs.js';
 import { writeRunFiles } from '../io/write-run.js';
 import { writeReportFiles } from '../report/write.js';
 import { DEFAULT_POND_PARAMS } from '../ponds/params.js';
@@ -34,6 +35,10 @@ export function defaultParams(): EstimateParams {
 }
 
 export interface RunOptions extends LoadOptions {
+  /** `--water-mask`: GeoTIFF or GeoJSON polygons of today's water (replaces detection in the DEM). */
+  waterMaskPath?: string | undefined;
+  /** `--bed-dem`: a DEM of the bed (before the dams, a drained year, bathymetry), used under today's water. */
+  bedDemPath?: string | undefined;
   outDir: string;
   params: EstimateParams;
   progress?: ProgressFn;
@@ -43,18 +48,24 @@ export interface RunOptions extends LoadOptions {
 export async function runEstimate(options: RunOptions): Promise<{ summary: Summary; result: EstimateResult }> {
   const startedAt = new Date();
   const loaded = await loadInputs(options);
+  let water: WaterInputs | null = null;
   try {
-    const result = await estimatePonds(loaded.dem, loaded.dams, options.params, options.progress);
+    water = await openWaterInputs(loaded.dem, {
+      maskPath: options.waterMaskPath,
+      bedDemPath: options.bedDemPath,
+      zUnit: loaded.dem.zUnitSource === 'option' ? loaded.dem.zUnit : undefined,
+    });
+    const result = await estimatePonds(loaded.dem, loaded.dams, options.params, options.progress, water);
     const summary = buildSummary({
       version: TOOL_VERSION,
       startedAt,
       finishedAt: new Date(),
-      inputs: loaded.inputs,
+      inputs: [...loaded.inputs, ...(water?.inputs ?? [])],
       dem: loaded.demFacts,
       damsFormat: loaded.damsFormat,
       damsCrs: loaded.damsSourceCrs,
       params: options.params,
-      assumptions: loaded.assumptions,
+      assumptions: [...loaded.assumptions, ...(water?.assumptions ?? [])],
       result,
       warnings: [...loaded.warnings, ...result.warnings],
     });
@@ -65,6 +76,7 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
     });
     return { summary, result };
   } finally {
+    await water?.close();
     await loaded.dem.close();
   }
 }

@@ -10,6 +10,7 @@ import type { Warning } from '../errors.js';
 import type { DemDescription } from '../io/dem.js';
 import type { EstimateParams, EstimateResult } from './estimate.js';
 import type { DamResult, InputRecord, Totals } from './result.js';
+import { effectiveWaterParams, waterAssumptions, waterParameters } from './water-stage.js';
 import { CAUTIONS } from './cautions.js';
 import type { Scenarios } from './scenarios.js';
 import type { RunDraws } from './draws.js';
@@ -28,7 +29,15 @@ export interface Summary {
   parameters: Record<string, number | string>;
   assumptions: string[];
   cautions: string[];
-  totals: Totals & { inundated_area_ha: number; inundated_area_acres: number; storage_acre_ft: number; bands?: Bands };
+  totals: Totals & {
+    inundated_area_ha: number;
+    inundated_area_acres: number;
+    storage_acre_ft: number;
+    bands?: Bands;
+    /** Above and below today's water surface, acre-feet (water-stage.ts). */
+    storage_above_surface_acre_ft?: number;
+    storage_below_surface_acre_ft?: number;
+  };
   dams: DamResult[];
   warnings: { code: string; dam_id: string | null; message: string }[];
   /** Existing and existing-plus-proposed water surfaces (pipeline/scenarios.ts); absent in older runs. */
@@ -78,14 +87,20 @@ export function buildSummary(args: {
       max_crest_length_m: params.maxCrestLengthM,
       min_confidence: params.minConfidence,
       ...(params.uncertainty ? uncertaintyParameters(params.uncertainty) : {}),
+      ...waterParameters(effectiveWaterParams(params)),
     },
-    assumptions: params.uncertainty ? [...args.assumptions, ...uncertaintyAssumptions(params.uncertainty)] : args.assumptions,
+    assumptions: [
+      ...(params.uncertainty ? [...args.assumptions, ...uncertaintyAssumptions(params.uncertainty)] : args.assumptions),
+      ...waterAssumptions(effectiveWaterParams(params)),
+    ],
     cautions: CAUTIONS,
     totals: {
       ...t,
       inundated_area_ha: m2ToHectares(t.inundated_area_m2),
       inundated_area_acres: m2ToAcres(t.inundated_area_m2),
       storage_acre_ft: m3ToAcreFeet(t.storage_m3),
+      storage_above_surface_acre_ft: m3ToAcreFeet(t.storage_above_surface_m3 ?? 0),
+      storage_below_surface_acre_ft: m3ToAcreFeet(t.storage_below_surface_m3 ?? 0),
       ...(args.draws ? { bands: args.draws.totalsBands } : {}),
     },
     dams: result.dams,

@@ -69,6 +69,46 @@ export function defaultWaterRunParams(): WaterRunParams {
 
 export { BELOW_MODELS };
 
+/**
+ * The water parameters a run uses: its own, or the defaults, with the DEM's
+ * vertical RMSE taken from the run's uncertainty settings when it has them
+ * (one DEM RMSE per run: `--dem-rmse` / the DEM's quality level).
+ */
+export function effectiveWaterParams(run: { water?: WaterRunParams; uncertainty?: { demRmseM: number } }): WaterRunParams {
+  const p = run.water ?? defaultWaterRunParams();
+  return run.uncertainty ? { ...p, water: { ...p.water, rmseZM: run.uncertainty.demRmseM } } : p;
+}
+
+/** The stage's parameters as summary.json lists them (units in the names). */
+export function waterParameters(p: WaterRunParams): Record<string, number | string> {
+  return {
+    water_detection: p.detect ? 'on' : 'off',
+    water_dem_rmse_m: p.water.rmseZM,
+    water_smooth_radius_cells: p.water.smoothRadiusCells,
+    water_tolerance_k: p.water.toleranceK,
+    water_tolerance_m: waterToleranceM(p.water),
+    water_min_area_m2: p.water.minAreaM2,
+    water_min_depth_m: p.water.minDepthM,
+    below_model: p.belowModel,
+    power_p: p.powerP,
+    bed_side_probe_m: p.reconstruct.sideProbeM,
+  };
+}
+
+/** Plain sentences for summary.json about the water below today's surfaces. */
+export function waterAssumptions(p: WaterRunParams): string[] {
+  const model =
+    p.belowModel === 'power-law'
+      ? `the area–depth power law V = A·h/(1 + 2/p) of Hayashi & van der Kamp (2000) with p = ${p.powerP}${p.powerP === POWER_P_MEDIAN ? ' (the median for beaver ponds of Karran et al. 2017)' : ''}, A today's water-surface area and h its depth at the dam`
+      : "a bed rebuilt from the dry channel below the dam to the water's upstream end and from the valley sides at the shore";
+  return [
+    `Lidar does not see through water: where a pond holds water today (found in the DEM${p.detect ? ` as a flat within the noise of a ${p.water.rmseZM} m RMSE DEM` : ''}, or from a water mask), the water below its surface comes from a bed DEM where one is given and has data, else from ${model}. volume_m3 = volume_above_surface_m3 + volume_below_surface_m3.`,
+    p.belowModel === 'power-law'
+      ? 'depth.tif holds the depth above today\'s water surface where the power law gives the water below it (one volume per pond, no depth per cell); where a bed DEM has data, depth = water level − bed.'
+      : 'depth.tif holds the depth down to the rebuilt (or bed-DEM) bed: depth = water level − bed, below today\'s surface too.',
+  ];
+}
+
 /** Extra rasters on one window: a water-mask label per cell (0 = dry) and a bed per cell (NaN = no data). */
 export interface WaterWindow {
   maskLabels: Int32Array | null;

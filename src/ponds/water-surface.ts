@@ -14,7 +14,8 @@
  *    RMSE σ average to σ/(2r + 1).
  * 2. Level: a priority-flood on the smoothed surface from the cells just
  *    upstream of the crest visits cells by their join level, up to
- *    `outlierK`·σ above the first; the water level W₁ is where their
+ *    `outlierK`·σ above the first (and no more than tol above the crest,
+ *    unless the first is); the water level W₁ is where their
  *    smoothed elevations crowd most (a water surface is one sharp peak,
  *    banks spread thinly above it).
  * 3. Noise: the flat's own noise is measured on those cells (1.4826 × the
@@ -110,6 +111,15 @@ export const DEFAULT_WATER_PARAMS: Readonly<WaterParams> = Object.freeze({
  */
 const LOW_TAIL_Z = 2.5;
 
+/** Smoothed elevations this many smoothed-noise σ below the level are dips (ground below the water). */
+const DIP_Z = 4;
+/** A surface may hold this many dip cells, or this share of its cells, before it counts as a dry flat with a channel in it. */
+const MAX_DIP_CELLS = 5;
+const MAX_DIP_SHARE = 0.005;
+
+/** A peak of the level histogram counts when it holds this share of the largest one. */
+const PEAK_SHARE = 0.05;
+
 /** Median absolute deviation to standard deviation for normal errors (1/Φ⁻¹(3/4)). */
 const MAD_TO_SIGMA = 1.4826;
 
@@ -168,6 +178,8 @@ export interface WaterDam {
   downstreamCells: Int32Array;
   /** Bed elevation at the dam, m. */
   bedElevM: number;
+  /** Crest elevation, m: the level search stops a little above it (water higher up has gone round the dam). */
+  crestElevM: number;
 }
 
 /** Cells [col0, col1) × [row0, row1) the search may enter. */
@@ -239,13 +251,18 @@ export function detectWaterSurface(
     if (heap.size === 0) return { surface: null, reason: 'no-start', areaM2: 0, levelM: NaN, reliefM: NaN };
     let n1 = 0;
     let first = NaN;
+    let passTopM = Infinity;
     let level = -Infinity;
     while (heap.size > 0) {
       const i = heap.pop();
       const zs = heap.lastPriority;
       if (zs > level) level = zs;
-      if (Number.isNaN(first)) first = level;
-      if (level > first + params.outlierK * params.rmseZM) break;
+      if (Number.isNaN(first)) {
+        first = level;
+        // Up to outlierK·σ above the first cell, but not far over the crest: beyond it water has gone round the dam.
+        passTopM = Math.max(first + 2 * tol, Math.min(first + params.outlierK * params.rmseZM, dam.crestElevM + tol));
+      }
+      if (level > passTopM) break;
       if (n1 === s.cells.length) growLists(s);
       s.cells[n1] = i;
       s.values[n1] = windowMean(z, mark, width, height, i, r, Infinity);
@@ -266,7 +283,7 @@ export function detectWaterSurface(
         }
       }
     }
-    const w1 = modeLevel(s.values, n1, smoothedNoiseM(params));
+    const w1 = lowestPeak(s.values, n1, smoothedNoiseM(params), Math.max(9, params.minAreaM2 / grid.cellAreaM2[Math.min(height - 1, Math.max(0, b.row0))]!));
 
     // The noise the flat itself shows (never more than the DEM's stated RMSE): cells near the level, raw elevations.
     let nNear = 0;
@@ -332,13 +349,18 @@ export function detectWaterSurface(
     const levelM = count > 0 ? median(s.values, count) : w1;
     // The lower tail: on water only noise lies below the level (median − 5th percentile = 1.645σ for normal errors).
     const lowTailM = count > 0 ? levelM - s.values[Math.floor(0.05 * (count - 1))]! : 0;
+    // Cells whose smoothed elevation lies clearly below the level: on water, noise alone almost never puts one there
+    // (P(z < −4σ) ≈ 3·10⁻⁵); a channel or hollow inside a dry flat does, as a line or patch of them.
+    const dipM = levelM - DIP_Z * noiseS;
+    let dips = 0;
+    for (let k = 0; k < count; k++) if (windowMean(z, mark, width, height, cells[k]!, rEff, capM) < dipM) dips++;
     const reliefM = fit.reliefM();
     // Step 5: acceptance.
     const noiseReliefM = count > 2 ? 3 * Math.sqrt(24 / count) * sigmaM : Infinity;
     let reason: NoWaterReason | null = null;
     if (count === 0 || areaM2 < params.minAreaM2) reason = 'too-small';
     else if (levelM - dam.bedElevM < params.minDepthM) reason = 'too-shallow';
-    else if (lowTailM > LOW_TAIL_Z * sigmaM + tolEff) reason = 'dips-below';
+    else if (lowTailM > LOW_TAIL_Z * sigmaM + tolEff || dips > Math.max(MAX_DIP_CELLS, MAX_DIP_SHARE * count)) reason = 'dips-below';
     else if (reliefM > params.maxReliefTol * tolEff + noiseReliefM) reason = 'tilted';
     if (reason !== null) return { surface: null, reason, areaM2, levelM, reliefM };
     return { surface: { levelM, cells, areaM2, source: 'detected', reachesEdge, reliefM } };
@@ -625,32 +647,48 @@ function fillHoles(s: WaterScratch, count: number, grid: Grid, capM: number): nu
 }
 
 /**
- * The level where the first n values crowd most: the value with the most
- * others within ±1 bin (`binM` wide; the lowest such value on ties), then
- * the median of the values within ±1 bin of it. A water surface is one sharp
- * peak; shore and bank cells spread thinly above it. Reorders the values.
+ * The pond's lowest level among the first n values: for each value, the
+ * count of values within ±1 bin (`binM` wide); the lowest value whose count
+ * reaches a twentieth of the largest count (and `minCount`) starts a climb to the
+ * top of its peak; the level is the median of the values within ±1 bin of
+ * that top (the climb looks 4 bins ahead, over the noise of the counts). A
+ * water surface is one sharp peak at the bottom; banks and a
+ * floodplain above the water make other peaks, higher up. Reorders the values.
  */
-function modeLevel(values: Float64Array, n: number, binM: number): number {
+function lowestPeak(values: Float64Array, n: number, binM: number, minCount: number): number {
   if (n === 0) return NaN;
   const v = values.subarray(0, n).sort();
   const bin = binM > 0 ? binM : 1e-3;
+  const counts = new Int32Array(n);
   let best = 0;
-  let bestCentre = v[0]!;
   let lo = 0;
   let hi = 0;
   for (let k = 0; k < n; k++) {
     const c = v[k]!;
     while (v[lo]! < c - bin) lo++;
     while (hi < n && v[hi]! <= c + bin) hi++;
-    if (hi - lo > best) {
-      best = hi - lo;
-      bestCentre = c;
-    }
+    counts[k] = hi - lo;
+    if (hi - lo > best) best = hi - lo;
   }
+  const floor = Math.max(Math.min(minCount, best), Math.ceil(PEAK_SHARE * best));
+  let k = 0;
+  while (k < n - 1 && counts[k]! < floor) k++;
+  // Climb to the top of this peak: the fullest value within 4 bins above, again while that is the window's last.
+  for (;;) {
+    let top = k;
+    let j = k + 1;
+    while (j < n && v[j]! <= v[k]! + 4 * bin) {
+      if (counts[j]! > counts[top]!) top = j;
+      j++;
+    }
+    if (top === k) break;
+    k = top;
+  }
+  const centre = v[k]!;
   let a = 0;
-  while (v[a]! < bestCentre - bin) a++;
+  while (v[a]! < centre - bin) a++;
   let b = a;
-  while (b < n && v[b]! <= bestCentre + bin) b++;
+  while (b < n && v[b]! <= centre + bin) b++;
   const m = (a + b - 1) >> 1;
   return (b - a) % 2 === 1 ? v[m]! : (v[m]! + v[m + 1]!) / 2;
 }
