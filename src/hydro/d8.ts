@@ -51,6 +51,9 @@ export function flowDirections(
   for (let r = 0; r < height; r++) {
     neighbourDistancesM(grid.cellWidthM, grid.cellHeightM, r, dist);
     for (let d = 0; d < 8; d++) invDist[d] = 1 / (dist[d] ?? 1);
+    const invCardinalN = invDist[0] ?? 0;
+    const invCardinalE = invDist[2] ?? 0;
+    const invDiagonal = invDist[1] ?? 0;
     const interiorRow = r > 0 && r < height - 1;
     for (let c = 0; c < width; c++) {
       const i = r * width + c;
@@ -59,18 +62,17 @@ export function flowDirections(
         dir[i] = DIR_NONE;
         continue;
       }
-      const interior = interiorRow && c > 0 && c < width - 1;
-      let best = 0;
-      let bestDir = -1;
-      for (let d = 0; d < 8; d++) {
-        if (!interior) {
+      let bestDir: number;
+      if (interiorRow && c > 0 && c < width - 1) {
+        bestDir = steepestInterior(filledZ, i, width, zi, invCardinalN, invCardinalE, invDiagonal);
+      } else {
+        bestDir = -1;
+        let best = 0;
+        for (let d = 0; d < 8; d++) {
           const rr = r + (DIR_ROW[d] ?? 0);
           const cc = c + (DIR_COL[d] ?? 0);
           if (rr < 0 || cc < 0 || rr >= height || cc >= width) continue;
-        }
-        const drop = zi - (filledZ[i + (off[d] ?? 0)] ?? NaN); // NaN (NoData) compares false
-        if (drop > 0) {
-          const slope = drop * (invDist[d] ?? 0);
+          const slope = (zi - (filledZ[i + (off[d] ?? 0)] ?? NaN)) * (invDist[d] ?? 0); // NaN (NoData) compares false
           if (slope > best) {
             best = slope;
             bestDir = d;
@@ -92,4 +94,59 @@ export function flowDirections(
     pitCells = resolveFlats(grid, filledZ, dir, flatCount);
   }
   return { dir, flatCells: flatCount - pitCells, pitCells };
+}
+
+/**
+ * Steepest-descent direction of an interior cell, −1 when no neighbour is
+ * lower; the eight neighbours unrolled in code order (ties keep the first).
+ */
+function steepestInterior(
+  z: Float32Array,
+  i: number,
+  w: number,
+  zi: number,
+  invN: number,
+  invE: number,
+  invD: number,
+): number {
+  let best = 0;
+  let dir = -1;
+  let s = (zi - (z[i - w] ?? NaN)) * invN;
+  if (s > best) {
+    best = s;
+    dir = 0;
+  }
+  s = (zi - (z[i - w + 1] ?? NaN)) * invD;
+  if (s > best) {
+    best = s;
+    dir = 1;
+  }
+  s = (zi - (z[i + 1] ?? NaN)) * invE;
+  if (s > best) {
+    best = s;
+    dir = 2;
+  }
+  s = (zi - (z[i + w + 1] ?? NaN)) * invD;
+  if (s > best) {
+    best = s;
+    dir = 3;
+  }
+  s = (zi - (z[i + w] ?? NaN)) * invN;
+  if (s > best) {
+    best = s;
+    dir = 4;
+  }
+  s = (zi - (z[i + w - 1] ?? NaN)) * invD;
+  if (s > best) {
+    best = s;
+    dir = 5;
+  }
+  s = (zi - (z[i - 1] ?? NaN)) * invE;
+  if (s > best) {
+    best = s;
+    dir = 6;
+  }
+  s = (zi - (z[i - w - 1] ?? NaN)) * invD;
+  if (s > best) dir = 7;
+  return dir;
 }

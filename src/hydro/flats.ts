@@ -130,6 +130,7 @@ export function resolveFlats(
 
   // 4. D8 on the surface: steepest descent to a flat neighbour with a lower value, or to a cell that drains (value 0).
   const dist = new Float64Array(8);
+  let distRow = -1;
   let pits = 0;
   for (let f = 0; f < flatCount; f++) {
     const cell = flats[f] ?? 0;
@@ -141,7 +142,10 @@ export function resolveFlats(
     }
     const r = (cell / width) | 0;
     const c = cell - r * width;
-    neighbourDistancesM(grid.cellWidthM, grid.cellHeightM, r, dist);
+    if (r !== distRow) {
+      neighbourDistancesM(grid.cellWidthM, grid.cellHeightM, r, dist); // flats are in row order
+      distRow = r;
+    }
     const m = mask[cell] ?? 0;
     const zc = z[cell] ?? 0;
     let best = 0;

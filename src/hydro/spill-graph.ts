@@ -11,15 +11,29 @@ import { CellHeap } from './heap.js';
 /** Node id shared by all cells that drain off the grid or into NoData. */
 export const OUTLET_LABEL = 1;
 
+const CACHE_SHIFT = 18; // 2^(32 − 18) = 16 384 slots
+const CACHE_SIZE = 1 << (32 - CACHE_SHIFT);
+
 /** Growable undirected edge list with a minimax solver. */
 export class SpillGraph {
   private from: Int32Array = new Int32Array(1024);
   private to: Int32Array = new Int32Array(1024);
   private weight: Float32Array = new Float32Array(1024);
   private count = 0;
+  // Direct-mapped cache of recent pairs: floods meet along boundaries, so the
+  // same pair comes up again and again; only new pairs or lower meeting
+  // elevations are stored.
+  private readonly cacheA = new Int32Array(CACHE_SIZE);
+  private readonly cacheB = new Int32Array(CACHE_SIZE);
+  private readonly cacheW = new Float32Array(CACHE_SIZE);
 
   /** Records that labels `a` and `b` meet at elevation `w` (metres). */
   add(a: number, b: number, w: number): void {
+    const slot = (Math.imul(a, 0x9e3779b1) ^ Math.imul(b, 0x85ebca6b)) >>> CACHE_SHIFT;
+    if (this.cacheA[slot] === a && this.cacheB[slot] === b && (this.cacheW[slot] ?? 0) <= w) return;
+    this.cacheA[slot] = a;
+    this.cacheB[slot] = b;
+    this.cacheW[slot] = w;
     if (this.count === this.from.length) this.grow();
     const k = this.count++;
     this.from[k] = a;
