@@ -1,0 +1,278 @@
+/**
+ * Ponds that already hold water, end to end through the files a user gives:
+ * a GeoTIFF DEM whose pond is flattened at today's water level, a dam
+ * inventory, and optionally a bed DEM or a water mask.
+ */
+import { mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import proj4 from 'proj4';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { InputError } from '../src/errors.js';
+import type { Grid } from '../src/grid/grid.js';
+import { crsFromEpsg } from '../src/io/crs.js';
+import { openDem } from '../src/io/dem.js';
+import { writeGeoTiff } from '../src/io/geotiff-write.js';
+import { openWaterInputs } from '../src/io/water-inputs.js';
+import { defaultParams, runEstimate } from '../src/pipeline/run.js';
+import type { Summary } from '../src/pipeline/summary.js';
+import { defaultWaterRunParams } from '../src/pipeline/water-stage.js';
+import { volumeBelow } from '../src/ponds/below-surface.js';
+import { makeDam, vValley } from './helpers/synthetic.js';
+import { flattenPond } from './helpers/water-scenes.js';
+
+const EPSG = 32612;
+const X0 = 500_000;
+const Y0 = 4_400_000;
+const CELL = 0.5;
+const M = 10;
+const S = 0.01;
+const CREST_HALF_M = 17;
+/** Today's water level over a bed at 0 at the dam; between the DEM's cell values, as real levels are. */
+const LEVEL = 0.6871;
+
+let dir: string;
+
+/** The valley of the tests: z = S·y + |x|/m (y upstream from the dam row, metres). */
+function valley(): Grid {
+  const damRow = Math.ceil(115 / CELL);
+  return vValley({ width: 2 * Math.ceil(18 / CELL) + 1, height: damRow + 20, cellM: CELL, damRow }, M, S);
+}
+
+async function writeDem(path: string, g: Grid, epsg = EPSG, shiftM: [number, number] = [0, 0]): Promise<void> {
+  const t = g.transform;
+  await writeGeoTiff(path, {
+    width: g.width,
+    height: g.height,
+    data: g.z,
+    transform: { x0: t.x0 + X0 + shiftM[0], y0: t.y0 + Y0 + shiftM[1], dx: t.dx, dy: t.dy },
+    crs: crsFromEpsg(epsg),
+    noData: -9999,
+    zUnit: 'metre',
+  });
+}
+
+/** A crest across the valley at y (local metres), as a GeoJSON feature in the DEM's CRS. */
+function crest(id: string, yM: number, props: Record<string, unknown>): object {
+  return {
+    type: 'Feature',
+    properties: { id, upstream: 'left', ...props },
+    geometry: { type: 'LineString', coordinates: [[X0 - CREST_HALF_M, Y0 + yM], [X0 + CREST_HALF_M, Y0 + yM]] },
+  };
+}
+
+async function run(name: string, dem: string, dams: object[], extra: { bedDem?: string; waterMask?: string; model?: 'power-law' | 'reconstructed' } = {}): Promise<Summary> {
+  const damsPath = join(dir, `${name}-dams.geojson`);
+  await writeFile(damsPath, JSON.stringify({ type: 'FeatureCollection', features: dams }));
+  const params = defaultParams();
+  params.water = { ...defaultWaterRunParams(), belowModel: extra.model ?? 'power-law' };
+  params.uncertainty = undefined;
+  await runEstimate({
+    demPaths: [dem],
+    damsPath,
+    damsCrs: `EPSG:${EPSG}`,
+    outDir: join(dir, name),
+    params,
+    bedDemPath: extra.bedDem,
+    waterMaskPath: extra.waterMask,
+  });
+  return JSON.parse(await readFile(join(dir, name, 'summary.json'), 'utf8')) as Summary;
+}
+
+let dry: Grid;
+let wetArea: number;
+
+beforeAll(async () => {
+  dir = await mkdtemp(join(tmpdir(), 'pondage-water-'));
+  dry = valley();
+  const dam = makeDam({ id: 'main', lines: [[[-CREST_HALF_M, 0], [CREST_HALF_M, 0]]], heightM: 1, upstream: 'left' });
+  const scene = flattenPond(dry, dam, LEVEL);
+  wetArea = scene.waterAreaM2;
+  await writeDem(join(dir, 'dry.tif'), dry);
+  await writeDem(join(dir, 'wet.tif'), scene.wet);
+});
+
+afterAll(async () => {
+  await rm(dir, { recursive: true, force: true });
+});
+
+function sums(s: Summary): { volume: number; above: number; below: number; area: number } {
+  let volume = 0;
+  let above = 0;
+  let below = 0;
+  let area = 0;
+  for (const d of s.dams) {
+    volume += d.volume_m3;
+    above += d.volume_above_surface_m3 ?? 0;
+    below += d.volume_below_surface_m3 ?? 0;
+    area += d.area_m2;
+  }
+  return { volume, above, below, area };
+}
+
+describe('a pond holding water, with a bed DEM', () => {
+  it('with --bed-dem equal to the DEM before the pond, the estimate equals the estimate on that DEM', async () => {
+    const before = await run('dry', join(dir, 'dry.tif'), [crest('main', 0, { height_m: 1 })]);
+    const withBed = await run('bed', join(dir, 'wet.tif'), [crest('main', 0, { height_m: 1 })], { bedDem: join(dir, 'dry.tif') });
+    const a = before.dams[0]!;
+    const b = withBed.dams[0]!;
+    expect(a.water_surface_area_m2).toBe(0);
+    expect(b.water_surface_elev_m).toBeCloseTo(LEVEL, 6);
+    expect(b.bed_source).toBe('bed-dem');
+    expect(b.water_surface_area_m2).toBe(wetArea);
+    expect(b.area_m2).toBe(a.area_m2);
+    expect(Math.abs(b.volume_m3 / a.volume_m3 - 1)).toBeLessThan(1e-9);
+    expect(b.volume_m3).toBe((b.volume_above_surface_m3 ?? NaN) + (b.volume_below_surface_m3 ?? NaN));
+    expect(b.freeboard_m).toBeCloseTo(1 - LEVEL, 6);
+    expect(withBed.inputs.map((i) => i.role)).toEqual(['dem', 'dams', 'bed-dem']);
+  });
+
+  it('refuses a bed DEM in another CRS, naming the gdalwarp command that fixes it', async () => {
+    await writeDem(join(dir, 'bed-utm13.tif'), dry, 32613);
+    const err = await run('bad-crs', join(dir, 'wet.tif'), [crest('main', 0, { height_m: 1 })], { bedDem: join(dir, 'bed-utm13.tif') }).catch((e: unknown) => e);
+    expect(err).toBeInstanceOf(InputError);
+    expect((err as Error).message).toMatch(/--bed-dem file .*EPSG:32613.*EPSG:32612.*gdalwarp -t_srs EPSG:32612/);
+  });
+
+  it('resamples a bed DEM on another grid of the same CRS bilinearly: exact on a plane (analytic)', async () => {
+    // Bilinear interpolation reproduces any plane z = a + b·x + c·y exactly.
+    const width = 30;
+    const height = 140;
+    const cellM = 2.3;
+    const t = { x0: X0 - 31.7, y0: Y0 + 117.3, dx: cellM, dy: -cellM };
+    const plane = (x: number, y: number): number => 5 + 0.013 * (x - X0) - 0.021 * (y - Y0);
+    const z = new Float32Array(width * height);
+    for (let r = 0; r < height; r++) for (let c = 0; c < width; c++) z[r * width + c] = plane(t.x0 + (c + 0.5) * cellM, t.y0 - (r + 0.5) * cellM);
+    await writeGeoTiff(join(dir, 'plane.tif'), { width, height, data: z, transform: t, crs: crsFromEpsg(EPSG), noData: -9999, zUnit: 'metre' });
+    const dem = await openDem([join(dir, 'wet.tif')]);
+    const water = (await openWaterInputs(dem, { bedDemPath: join(dir, 'plane.tif') }))!;
+    const box = { col0: 5, row0: 10, col1: 60, row1: 200 };
+    const got = await water.readWindow(box);
+    let checked = 0;
+    for (let r = box.row0; r < box.row1; r++) {
+      for (let c = box.col0; c < box.col1; c++) {
+        const x = dem.transform.x0 + (c + 0.5) * dem.transform.dx;
+        const y = dem.transform.y0 + (r + 0.5) * dem.transform.dy;
+        const v = got.bedZ![(r - box.row0) * (box.col1 - box.col0) + (c - box.col0)]!;
+        expect(Math.abs(v - plane(x, y))).toBeLessThan(1e-4);
+        checked++;
+      }
+    }
+    expect(checked).toBe(55 * 190);
+    await water.close();
+    await dem.close();
+  });
+});
+
+describe('a pond holding water, from the DEM alone', () => {
+  let power: Summary;
+  let rebuilt: Summary;
+  beforeAll(async () => {
+    power = await run('power', join(dir, 'wet.tif'), [crest('main', 0, { height_m: 1 })]);
+    rebuilt = await run('rebuilt', join(dir, 'wet.tif'), [crest('main', 0, { height_m: 1 })], { model: 'reconstructed' });
+  });
+
+  it('finds the surface and adds the power law below it: V = A·h/(1 + 2/p), p = 0.91', () => {
+    const d = power.dams[0]!;
+    expect(d.water_surface_source).toBe('detected');
+    expect(d.water_surface_elev_m).toBeCloseTo(LEVEL, 6);
+    expect(d.bed_source).toBe('power-law');
+    expect(d.power_p).toBe(0.91);
+    expect(d.volume_below_surface_m3).toBeCloseTo(volumeBelow(d.water_surface_area_m2!, d.depth_at_dam_m!, 0.91), 9);
+    // Hayashi & van der Kamp (2000): on a V-shaped valley (a cone-like pond, V = A·h/3 analytic) p = 0.91 gives a little less.
+    const analytic = (M * LEVEL ** 3) / (3 * S);
+    expect(d.volume_below_surface_m3! / analytic).toBeGreaterThan(0.9);
+    expect(d.volume_below_surface_m3! / analytic).toBeLessThan(1);
+  });
+
+  it('rebuilds the bed within 3 % of the analytic V = m·h³/(3S), and the whole pond as on the dry DEM within 3 %', async () => {
+    const d = rebuilt.dams[0]!;
+    expect(d.bed_source).toBe('reconstructed');
+    const analytic = (M * LEVEL ** 3) / (3 * S);
+    expect(Math.abs(d.volume_below_surface_m3! / analytic - 1)).toBeLessThan(0.03);
+    const before = JSON.parse(await readFile(join(dir, 'dry', 'summary.json'), 'utf8')) as Summary;
+    expect(Math.abs(d.volume_m3 / before.dams[0]!.volume_m3 - 1)).toBeLessThan(0.03);
+  });
+
+  it('sums rows to the totals exactly: storage, above and below the surface', () => {
+    for (const s of [power, rebuilt]) {
+      const t = sums(s);
+      expect(t.volume).toBe(s.totals.storage_m3);
+      expect(t.above).toBe(s.totals.storage_above_surface_m3);
+      expect(t.below).toBe(s.totals.storage_below_surface_m3);
+      expect(s.totals.dams_with_water_surface).toBe(1);
+    }
+  });
+
+  it('writes depth.tif down to the rebuilt bed (Σ depth × area = storage), above the surface only under the power law', async () => {
+    for (const [name, s, want] of [
+      ['rebuilt', rebuilt, rebuilt.totals.storage_m3],
+      ['power', power, power.totals.storage_above_surface_m3!],
+    ] as const) {
+      const depth = await openDem([join(dir, name, 'depth.tif')]);
+      const g = await depth.readWindow(0, 0, depth.width, depth.height);
+      let v = 0;
+      for (const d of g.z) if (!Number.isNaN(d)) v += d * CELL * CELL;
+      expect(v / want).toBeCloseTo(1, 4);
+      expect(s.parameters['below_model']).toBe(name === 'power' ? 'power-law' : 'reconstructed');
+      await depth.close();
+    }
+  });
+
+  it('writes the split to dams.csv', async () => {
+    const [header, row] = (await readFile(join(dir, 'power', 'dams.csv'), 'utf8')).trim().split('\n');
+    const cols = header!.split(',');
+    const cells = row!.split(',');
+    for (const c of ['volume_above_surface_m3', 'volume_below_surface_m3', 'water_surface_elev_m', 'water_surface_area_m2', 'freeboard_m', 'bed_source']) {
+      expect(cols).toContain(c);
+    }
+    expect(cells[cols.indexOf('bed_source')]).toBe('power-law');
+    expect(Number(cells[cols.indexOf('water_surface_elev_m')])).toBeCloseTo(LEVEL, 3);
+  });
+});
+
+describe('bad input and odd water', () => {
+  it('warns when the water stands above the crest (overtopped, or the crest height is wrong)', async () => {
+    const s = await run('over', join(dir, 'wet.tif'), [crest('main', 0, { height_m: 0.5 })]);
+    expect(s.warnings.map((w) => w.code)).toContain('water-above-crest');
+    expect(s.dams[0]!.freeboard_m!).toBeLessThan(0);
+    // The water below the surface is still counted; there is no capacity above it.
+    expect(s.dams[0]!.volume_below_surface_m3!).toBeGreaterThan(0);
+  });
+
+  it('warns when a water-mask polygon touches no pond, and uses the one that does', async () => {
+    const toLonLat = proj4(crsFromEpsg(EPSG).proj4, 'EPSG:4326');
+    const ring = (pts: number[][]): number[][] => [...pts, pts[0]!].map(([x, y]) => toLonLat.forward([X0 + x!, Y0 + y!]));
+    const mask = {
+      type: 'FeatureCollection',
+      features: [
+        // Today's water: the triangle the level covers on the V (shore at |x| = m(h − S·y), analytic).
+        { type: 'Feature', properties: { id: 'pond' }, geometry: { type: 'Polygon', coordinates: [ring([[-M * LEVEL, 0.25], [M * LEVEL, 0.25], [0, LEVEL / S]])] } },
+        { type: 'Feature', properties: { id: 'stray' }, geometry: { type: 'Polygon', coordinates: [ring([[-15, -40], [-10, -40], [-10, -30], [-15, -30]])] } },
+      ],
+    };
+    await writeFile(join(dir, 'mask.geojson'), JSON.stringify(mask));
+    const s = await run('mask', join(dir, 'wet.tif'), [crest('main', 0, { height_m: 1 })], { waterMask: join(dir, 'mask.geojson') });
+    const d = s.dams[0]!;
+    expect(d.water_surface_source).toBe('mask');
+    expect(d.water_surface_elev_m!).toBeCloseTo(LEVEL, 3);
+    const unused = s.warnings.filter((w) => w.code === 'water-mask-unused');
+    expect(unused).toHaveLength(1);
+    expect(unused[0]!.message).toMatch(/'stray'/);
+    expect(unused[0]!.message).not.toMatch(/'pond'/);
+  });
+
+  it("counts a cascade once: the lower dam's water drowns the upper dam, whose row holds none of it", async () => {
+    // The upper crest at y = 30 m stands 0.2 m above the bed there (S·30 = 0.3 m): under today's water (0.687 m).
+    const s = await run('cascade', join(dir, 'wet.tif'), [crest('main', 0, { height_m: 1 }), crest('upper', 30, { height_m: 0.2 })]);
+    const main = s.dams.find((d) => d.id === 'main')!;
+    const upper = s.dams.find((d) => d.id === 'upper')!;
+    expect(upper.drowned_by).toBe('main');
+    expect(upper.volume_below_surface_m3 ?? 0).toBe(0);
+    expect(upper.water_surface_area_m2 ?? 0).toBe(0);
+    expect(Math.abs(main.water_surface_area_m2! / wetArea - 1)).toBeLessThan(0.02);
+    const t = sums(s);
+    expect(t.volume).toBe(s.totals.storage_m3);
+    expect(t.below).toBe(s.totals.storage_below_surface_m3);
+  });
+});
