@@ -124,6 +124,16 @@ describe('storage change between runs', () => {
     expect(html).not.toMatch(/https?:\/\/(?!www\.w3\.org\/2000\/svg)/); // self-contained: no link but the SVG namespace
   });
 
+  it('writes the same bytes for the same runs (no clock, seeded pair samples)', async () => {
+    await compare(['y1', 'cascade'], 'cmp-once');
+    await compare(['y1', 'cascade'], 'cmp-twice');
+    for (const f of ['compare.json', 'compare.csv', 'compare.html']) {
+      const once = await readFile(join(dir, 'cmp-once', f), 'utf8');
+      expect(once.length).toBeGreaterThan(100);
+      expect(await readFile(join(dir, 'cmp-twice', f), 'utf8')).toBe(once);
+    }
+  });
+
   it('refuses to write over a run folder, and replaces an earlier comparison', async () => {
     await expect(compare(['y1', 'add'], 'y1')).rejects.toThrow(/did not write/);
     await expect(compare(['y1', 'add'], 'cmp-add')).resolves.toBeTruthy();
