@@ -60,3 +60,26 @@ describe('HAND (Rennó et al. 2008) on a V-valley', () => {
     expect(valleyBottomThresholdM(0)).toBe(1);
   });
 });
+
+describe('HAND surface policy', () => {
+  it('keeps a real depression below its drainage as negative HAND on the original DEM, not on the filled one', () => {
+    // The V-valley again with one hillslope cell, 3 cells from the channel, dug 1 m below the channel beside it.
+    const dug = Float32Array.from(z);
+    const r = 25;
+    const i = r * width + mid + 3;
+    dug[i] = (z[r * width + mid] ?? 0) - 1;
+    const g = makeGrid({ width, height, z: dug, transform: { x0: 0, y0: 0, dx: cellM, dy: -cellM } });
+    // 60 cells: the channel from row 1 on (82 cells and more) is stream, the pit's small catchment is not.
+    const threshold = 60 * cellM * cellM;
+    const original = analyseTerrain(g, { streamThresholdM2: threshold });
+    const filled = analyseTerrain(g, { streamThresholdM2: threshold, handSurface: 'filled' });
+    expect(original.stream[i]).toBe(0);
+    const drain = original.hand.drainCell[i] ?? -1;
+    expect(drain % width).toBe(mid);
+    expect(filled.hand.drainCell[i]).toBe(drain);
+    expect(original.hand.heightM[i]).toBeCloseTo((dug[i] ?? 0) - (dug[drain] ?? 0), 5);
+    expect(original.hand.heightM[i]).toBeLessThan(-0.5);
+    expect(filled.hand.heightM[i]).toBeCloseTo((filled.filledZ[i] ?? 0) - (filled.filledZ[drain] ?? 0), 5);
+    expect(filled.hand.heightM[i]).toBeGreaterThan(0);
+  });
+});

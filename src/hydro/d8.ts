@@ -17,10 +17,7 @@
 import type { Grid } from '../grid/grid.js';
 import { isEdgeCell } from './fill.js';
 import { resolveFlats } from './flats.js';
-import { DIR_COL, DIR_NONE, DIR_OUTLET, DIR_ROW, neighbourDistancesM, neighbourOffsets } from './neighbours.js';
-
-/** Marks a flat cell between the two passes. */
-export const DIR_FLAT = 254;
+import { DIR_COL, DIR_FLAT, DIR_NONE, DIR_OUTLET, DIR_ROW, neighbourDistancesM, neighbourOffsets } from './neighbours.js';
 
 /** Result of {@link flowDirections}. */
 export interface FlowDirections {

@@ -16,9 +16,7 @@
  * `DIR_NONE`.
  */
 import type { Grid } from '../grid/grid.js';
-import { DIR_COL, DIR_NONE, DIR_ROW, neighbourDistancesM, neighbourOffsets } from './neighbours.js';
-
-const FLAT = 254; // same value as DIR_FLAT in d8.ts (kept literal to avoid a cycle)
+import { DIR_COL, DIR_FLAT as FLAT, DIR_NONE, DIR_ROW, neighbourDistancesM, neighbourOffsets } from './neighbours.js';
 
 /**
  * Routes every `FLAT`-marked cell of `dir` (in place) and returns the number

@@ -16,6 +16,8 @@ export const DIR_COL: Int8Array = Int8Array.of(0, 1, 1, 1, 0, -1, -1, -1);
 export const DIR_OUTLET = 8;
 /** NoData, or a pit with no lower neighbour and no outlet. */
 export const DIR_NONE = 255;
+/** Marks a flat cell between the D8 pass and flat routing; never left in a finished direction raster. */
+export const DIR_FLAT = 254;
 
 /** Flat-index offset of each direction on a grid `width` columns wide. */
 export function neighbourOffsets(width: number): Int32Array {

@@ -26,9 +26,11 @@ export const DEFAULT_RIPARIAN_DISTANCE_M = 50;
 /** Default height a riparian cell may stand above the nearest pond's water level, m (Westbrook et al. 2006). */
 export const DEFAULT_RIPARIAN_RISE_M = 1.0;
 
-/** Class codes of the influence raster. */
+/** Influence class: neither inundated nor riparian. */
 export const INFLUENCE_NONE = 0;
+/** Influence class: under water (a pond cell). */
 export const INFLUENCE_INUNDATED = 1;
+/** Influence class: riparian (dry, near and not far above the nearest pond). */
 export const INFLUENCE_RIPARIAN = 2;
 
 /** Options of {@link influenceZone}. */
@@ -50,7 +52,9 @@ export interface InfluenceOptions {
 export interface InfluenceResult {
   /** Per cell: 0 none, 1 inundated, 2 riparian. */
   readonly classes: Uint8Array;
+  /** Area of pond cells, m². */
   readonly inundatedAreaM2: number;
+  /** Area of riparian cells, m². */
   readonly riparianAreaM2: number;
   /** Inundated + riparian, m². */
   readonly influenceAreaM2: number;
