@@ -5,7 +5,7 @@
 import { writeFolderAtomically } from '../io/run-folder.js';
 import { openWaterInputs, type WaterInputs } from '../io/water-inputs.js';
 import { writeRunFiles } from '../io/write-run.js';
-import { writeReportFiles } from '../report/write.js';
+import { collectHillshade, writeReportFiles } from '../report/write.js';
 import { DEFAULT_POND_PARAMS } from '../ponds/params.js';
 import { DEFAULT_MAX_CREST_LENGTH_M, DEFAULT_SNAP_RADIUS_M } from '../ponds/point-crest.js';
 import { estimatePonds, type EstimateParams, type EstimateResult, type ProgressFn } from './estimate.js';
@@ -55,7 +55,10 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
       bedDemPath: options.bedDemPath,
       zUnit: loaded.dem.zUnitSource === 'option' ? loaded.dem.zUnit : undefined,
     });
-    const result = await estimatePonds(loaded.dem, loaded.dams, options.params, options.progress, water);
+    // The report's hillshade is gathered from the estimate's own window reads (report/shade-blocks.ts).
+    const { maxReachM, maxCrestLengthM, snapRadiusM } = options.params;
+    const shade = collectHillshade(loaded.dem, loaded.dams, maxReachM + maxCrestLengthM / 2 + snapRadiusM);
+    const result = await estimatePonds(shade.source, loaded.dams, options.params, options.progress, water);
     const summary = buildSummary({
       version: TOOL_VERSION,
       startedAt,
@@ -72,7 +75,7 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
     await writeFolderAtomically(options.outDir, async (dir) => {
       await writeRunFiles(dir, { summary, result, demTransform: loaded.dem.transform, demCrs: loaded.dem.crs });
       // Last, so it reads the files above: report-map.json and report.html.
-      await writeReportFiles(dir, { dem: loaded.dem, dams: loaded.dams, outlines: result.outlines });
+      await writeReportFiles(dir, { dem: loaded.dem, dams: loaded.dams, outlines: result.outlines, collected: shade.blocks });
     });
     return { summary, result };
   } finally {

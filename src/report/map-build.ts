@@ -10,6 +10,7 @@ import { cellMetrics, crsUnitM } from '../io/crs.js';
 import type { DemSource } from '../io/dem.js';
 import { HILLSHADE_ALTITUDE_DEG, HILLSHADE_AZIMUTH_DEG, hornHillshade } from './hillshade.js';
 import { REPORT_MAP_FORMAT, REPORT_MAP_VERSION, type MapDam, type ReportMap } from './map-file.js';
+import type { BlockMeans } from './shade-blocks.js';
 
 /**
  * Longest side of the hillshade in pixels: a block of n × n DEM cells becomes
@@ -23,6 +24,14 @@ const MARGIN_SHARE = 0.12;
 const MARGIN_MIN_M = 60;
 /** Narrow side of the mapped extent at least this share of the long side, where the DEM reaches. */
 const MIN_ASPECT = 0.6;
+/**
+ * Collected blocks are used when the map, in those blocks, is at least this
+ * share of HILLSHADE_MAX_SIDE_PX on its long side; a map much smaller than the
+ * estimate's area is read again at a finer block size.
+ */
+const MIN_SHARE_OF_COLLECTED = 0.5;
+/** Missing blocks fewer than this many cells apart along a strip are read in one window. */
+const RUN_JOIN_CELLS = 256;
 /** Rows of DEM cells read at a time (rounded up to whole blocks), so large DEMs never sit whole in memory. */
 const STRIP_ROWS = 512;
 
@@ -35,6 +44,8 @@ export async function buildReportMap(args: {
   dams: readonly DamInput[];
   outlines: PixelPolygons;
   maxSidePx?: number;
+  /** Block means gathered while the estimate read the DEM (shade-blocks.ts); blocks it lacks are read here. */
+  collected?: BlockMeans | null;
 }): Promise<ReportMap> {
   const { dem } = args;
   const t = dem.transform;
@@ -90,16 +101,47 @@ export async function buildReportMap(args: {
     r1 = Math.min(dem.height, Math.ceil(r1));
   }
   const maxSide = args.maxSidePx ?? HILLSHADE_MAX_SIDE_PX;
-  const block = Math.max(1, Math.ceil(Math.max(c1 - c0, r1 - r0) / maxSide));
-  // Whole blocks only: grow the extent, within the DEM where it can.
-  const wPx = Math.ceil((c1 - c0) / block);
-  const hPx = Math.ceil((r1 - r0) / block);
-  c0 = Math.max(0, Math.min(c0, c1 - wPx * block));
-  r0 = Math.max(0, Math.min(r0, r1 - hPx * block));
-  c1 = c0 + wPx * block;
-  r1 = r0 + hPx * block;
+  // Blocks gathered during the estimate serve when the map is not much smaller than the area they cover.
+  let blocks = args.collected ?? null;
+  if (blocks && Math.max(c1 - c0, r1 - r0) / blocks.block < maxSide * MIN_SHARE_OF_COLLECTED) blocks = null;
+  let block: number;
+  let gc0: number;
+  let gr0: number;
+  if (blocks) {
+    block = blocks.block;
+    gc0 = blocks.col0;
+    gr0 = blocks.row0;
+    // Snap to the collected grid and stay inside it.
+    c0 = Math.max(gc0, gc0 + Math.floor((c0 - gc0) / block) * block);
+    r0 = Math.max(gr0, gr0 + Math.floor((r0 - gr0) / block) * block);
+    c1 = Math.min(gc0 + blocks.cols * block, gc0 + Math.ceil((c1 - gc0) / block) * block);
+    r1 = Math.min(gr0 + blocks.rows * block, gr0 + Math.ceil((r1 - gr0) / block) * block);
+  } else {
+    block = Math.max(1, Math.ceil(Math.max(c1 - c0, r1 - r0) / maxSide));
+    // Whole blocks on the DEM's grid of block multiples (the same grid shade-blocks.ts lays).
+    c0 = Math.floor(c0 / block) * block;
+    r0 = Math.floor(r0 / block) * block;
+    c1 = Math.ceil(c1 / block) * block;
+    r1 = Math.ceil(r1 / block) * block;
+    gc0 = c0;
+    gr0 = r0;
+  }
+  const wPx = (c1 - c0) / block;
+  const hPx = (r1 - r0) / block;
 
-  const shade = await shadeExtent(dem, c0, r0, wPx, hPx, block);
+  const means = new Float32Array(wPx * hPx);
+  const missing = new Uint8Array(wPx * hPx);
+  const bx0 = (c0 - gc0) / block;
+  const by0 = (r0 - gr0) / block;
+  for (let by = 0; by < hPx; by++) {
+    for (let bx = 0; bx < wPx; bx++) {
+      const m = blocks ? blocks.meanOf(bx0 + bx, by0 + by) : undefined;
+      if (m === undefined) missing[by * wPx + bx] = 1;
+      else means[by * wPx + bx] = m;
+    }
+  }
+  await readMissingBlocks(dem, { col0: c0, row0: r0, block, wPx, hPx }, means, missing);
+  const shade = shadePng(dem, { row0: r0, block, wPx, hPx }, means);
   return {
     format: REPORT_MAP_FORMAT,
     version: REPORT_MAP_VERSION,
@@ -132,50 +174,106 @@ export async function buildReportMap(args: {
 }
 
 /**
- * Reads the extent strip by strip, averages blocks of `block` × `block` cells
- * (NoData cells left out; an all-NoData block is NoData), hillshades the
- * block grid and encodes it as PNG (base64). Null when every block is NoData.
+ * Reads the blocks still missing, strip by strip (whole strips of blocks, so
+ * tiles are decoded about once), and stores each block's mean of its
+ * non-NoData cells (NaN when it has none).
  */
-async function shadeExtent(dem: DemSource, col0: number, row0: number, wPx: number, hPx: number, block: number): Promise<string | null> {
-  const z = new Float32Array(wPx * hPx);
-  const blockWidthM = new Float64Array(hPx);
-  let blockHeightM = 0;
-  const sums = new Float64Array(wPx);
-  const counts = new Uint32Array(wPx);
+async function readMissingBlocks(
+  dem: DemSource,
+  g: { col0: number; row0: number; block: number; wPx: number; hPx: number },
+  means: Float32Array,
+  missing: Uint8Array,
+): Promise<void> {
+  const { block, wPx, hPx } = g;
   const stripBlocks = Math.max(1, Math.ceil(STRIP_ROWS / block));
-  let any = false;
+  // Runs of block columns closer than this are read as one window.
+  const joinGap = Math.max(1, Math.ceil(RUN_JOIN_CELLS / block));
   for (let by0 = 0; by0 < hPx; by0 += stripBlocks) {
     const nb = Math.min(stripBlocks, hPx - by0);
-    const grid = await dem.readWindow(col0, row0 + by0 * block, wPx * block, nb * block);
-    blockHeightM = grid.cellHeightM * block;
-    for (let b = 0; b < nb; b++) {
-      sums.fill(0);
-      counts.fill(0);
-      let widthSum = 0;
-      let widthRows = 0;
-      for (let rr = b * block; rr < (b + 1) * block && rr < grid.height; rr++) {
-        widthSum += grid.cellWidthM[rr]!;
-        widthRows++;
-        const off = rr * grid.width;
-        for (let col = 0; col < grid.width; col++) {
-          const v = grid.z[off + col]!;
-          if (Number.isNaN(v)) continue;
-          const bx = Math.floor(col / block);
-          sums[bx]! += v;
-          counts[bx]!++;
-        }
+    // Column runs of this strip that hold missing blocks, each with its row span.
+    const runs: { lo: number; hi: number; top: number; bottom: number }[] = [];
+    for (let bx = 0; bx < wPx; bx++) {
+      let top = -1;
+      let bottom = -1;
+      for (let by = by0; by < by0 + nb; by++) {
+        if (!missing[by * wPx + bx]) continue;
+        if (top < 0) top = by;
+        bottom = by;
       }
-      const out = (by0 + b) * wPx;
-      blockWidthM[by0 + b] = widthRows > 0 ? (widthSum / widthRows) * block : block;
-      for (let bx = 0; bx < wPx; bx++) {
-        const n = counts[bx]!;
-        z[out + bx] = n > 0 ? sums[bx]! / n : NaN;
-        if (n > 0) any = true;
+      if (top < 0) continue;
+      const last = runs[runs.length - 1];
+      if (last && bx - last.hi <= joinGap) {
+        last.hi = bx;
+        last.top = Math.min(last.top, top);
+        last.bottom = Math.max(last.bottom, bottom);
+      } else {
+        runs.push({ lo: bx, hi: bx, top, bottom });
       }
+    }
+    for (const run of runs) await readBlocks(dem, g, means, missing, run);
+  }
+}
+
+/** Reads one window of blocks [lo, hi] × [top, bottom] and fills the missing ones. */
+async function readBlocks(
+  dem: DemSource,
+  g: { col0: number; row0: number; block: number; wPx: number },
+  means: Float32Array,
+  missing: Uint8Array,
+  run: { lo: number; hi: number; top: number; bottom: number },
+): Promise<void> {
+  const { block, wPx } = g;
+  const span = run.hi - run.lo + 1;
+  const nb = run.bottom - run.top + 1;
+  const grid = await dem.readWindow(g.col0 + run.lo * block, g.row0 + run.top * block, span * block, nb * block);
+  const sums = new Float64Array(span * nb);
+  const counts = new Uint32Array(span * nb);
+  const colBlock = new Int32Array(grid.width);
+  for (let col = 0; col < grid.width; col++) colBlock[col] = Math.floor((grid.colOffset + col - g.col0) / block) - run.lo;
+  for (let row = 0; row < grid.height; row++) {
+    const rb = Math.floor((grid.rowOffset + row - g.row0) / block) - run.top;
+    if (rb < 0 || rb >= nb) continue;
+    const off = row * grid.width;
+    for (let col = 0; col < grid.width; col++) {
+      const v = grid.z[off + col]!;
+      const cb = colBlock[col]!;
+      if (Number.isNaN(v) || cb < 0 || cb >= span) continue;
+      sums[rb * span + cb]! += v;
+      counts[rb * span + cb]!++;
+    }
+  }
+  for (let rb = 0; rb < nb; rb++) {
+    for (let cb = 0; cb < span; cb++) {
+      const i = (run.top + rb) * wPx + run.lo + cb;
+      if (!missing[i]) continue;
+      const n = counts[rb * span + cb]!;
+      means[i] = n > 0 ? sums[rb * span + cb]! / n : NaN;
+      missing[i] = 0;
+    }
+  }
+}
+
+/** Hillshades the block means (cell sizes per block row from the CRS) and encodes them as PNG (base64); null when all NoData. */
+function shadePng(dem: DemSource, g: { row0: number; block: number; wPx: number; hPx: number }, means: Float32Array): string | null {
+  const { block, wPx, hPx } = g;
+  let any = false;
+  for (let i = 0; i < means.length; i++) {
+    if (!Number.isNaN(means[i]!)) {
+      any = true;
+      break;
     }
   }
   if (!any) return null;
-  const light = hornHillshade({ width: wPx, height: hPx, z, cellWidthM: blockWidthM, cellHeightM: blockHeightM });
+  const blockWidthM = new Float64Array(hPx);
+  let blockHeightM = 0;
+  for (let by = 0; by < hPx; by++) {
+    const m = cellMetrics(dem.crs, dem.transform, g.row0 + by * block, block);
+    let sum = 0;
+    for (let k = 0; k < m.cellWidthM.length; k++) sum += m.cellWidthM[k]!;
+    blockWidthM[by] = (sum / Math.max(1, m.cellWidthM.length)) * block;
+    blockHeightM = m.cellHeightM * block;
+  }
+  const light = hornHillshade({ width: wPx, height: hPx, z: means, cellWidthM: blockWidthM, cellHeightM: blockHeightM });
   let hasNoData = false;
   for (let i = 0; i < light.length; i++) {
     if (Number.isNaN(light[i]!)) {

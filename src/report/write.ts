@@ -9,10 +9,11 @@ import { InputError } from '../errors.js';
 import type { DamInput } from '../inventory.js';
 import type { DemSource } from '../io/dem.js';
 import { parseGeoJsonLayer, type LayerFeature } from './geojson-layer.js';
-import { buildReportMap, type PixelPolygons } from './map-build.js';
+import { HILLSHADE_MAX_SIDE_PX, buildReportMap, type PixelPolygons } from './map-build.js';
 import { REPORT_MAP_FILE, parseReportMap, type ReportMap } from './map-file.js';
 import { renderReport } from './render.js';
 import { parseRunSummary } from './run-data.js';
+import { planBlocks, teeDem, type BlockMeans } from './shade-blocks.js';
 import type { ReportInput } from './view.js';
 
 /** The report's file name in a run folder. */
@@ -76,12 +77,26 @@ export async function writeReport(runDir: string, outPath: string = join(runDir,
 
 /**
  * The estimate's report step, run inside the run folder's atomic write after
- * the other files: report-map.json (from the open DEM) and report.html.
+ * the other files: report-map.json (from the open DEM, and from the blocks
+ * gathered during the estimate when given: see shade-blocks.ts) and report.html.
  */
-export async function writeReportFiles(dir: string, run: { dem: DemSource; dams: readonly DamInput[]; outlines: PixelPolygons }): Promise<void> {
-  const map = await buildReportMap({ dem: run.dem, dams: run.dams, outlines: run.outlines });
+export async function writeReportFiles(
+  dir: string,
+  run: { dem: DemSource; dams: readonly DamInput[]; outlines: PixelPolygons; collected?: BlockMeans | null },
+): Promise<void> {
+  const map = await buildReportMap({ dem: run.dem, dams: run.dams, outlines: run.outlines, collected: run.collected ?? null });
   await writeFile(join(dir, REPORT_MAP_FILE), JSON.stringify(map) + '\n');
   await writeReport(dir);
+}
+
+/**
+ * Wraps the DEM an estimate will read so its windows also feed the report's
+ * hillshade: pass `source` to the estimate and `blocks` to writeReportFiles.
+ * `reachM` is how far the estimate reads around each dam, metres.
+ */
+export function collectHillshade(dem: DemSource, dams: readonly DamInput[], reachM: number): { source: DemSource; blocks: BlockMeans } {
+  const blocks = planBlocks(dem, dams, reachM, HILLSHADE_MAX_SIDE_PX);
+  return { source: teeDem(dem, blocks), blocks };
 }
 
 async function readOptional(path: string): Promise<string | null> {
