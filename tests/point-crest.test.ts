@@ -62,14 +62,15 @@ describe('crestFromPoint on an analytic V-valley', () => {
   const grid = gridOf(size, cellM, valley.z);
   const crest = ok(crestFromPoint(grid, cx + 3, cy, { heightM }));
 
-  it('finds the channel: the lowest cell within the 10 m default radius, on the thalweg', () => {
+  it('finds the channel on the thalweg, on the cross-section through the point (not downstream of it)', () => {
     const col = crest.channelCell % size;
     const row = Math.floor(crest.channelCell / size);
     expect(col).toBe(100);
-    // Lowest cell within 10 m of (cx + 3, cy) on a floor falling south: the
-    // thalweg cell furthest south inside the disc, sqrt(10² − 3²) = 9.54 m → 9 rows.
-    expect(row).toBe(109);
-    expect(crest.bedElevM).toBeCloseTo(valley.z(cx, cy - 9), 4);
+    // The point (cx + 3, cy) is 3 m off the thalweg; the cross-section through it,
+    // perpendicular to the southward flow, meets the thalweg at (cx, cy): row 100.
+    // The lowest cell of the whole 10 m disc would lie 9 rows further south.
+    expect(row).toBe(100);
+    expect(crest.bedElevM).toBeCloseTo(valley.z(cx, cy), 4);
   });
 
   it('flows downstream along the valley axis (south)', () => {

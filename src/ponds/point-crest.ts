@@ -120,18 +120,41 @@ export function crestFromPoint(grid: Grid, x: number, y: number, options: PointC
       }
     }
   }
-  const cr = Math.floor(channel / width);
-  const cc = channel - cr * width;
-  const frame = frameAt(grid, cc, cr);
+  let cr = Math.floor(channel / width);
+  let cc = channel - cr * width;
   const stepM = 0.5 * Math.min(cwM, chM);
   const warnings: Warning[] = [];
 
   // 2. Flow direction.
   const reachM = Math.max(options.flowReachM ?? DEFAULT_FLOW_REACH_M, 5 * Math.max(cwM, chM));
-  const axis = estimateFlowAxis(grid, frame, reachM, stepM);
+  const axis = estimateFlowAxis(grid, frameAt(grid, cc, cr), reachM, stepM);
   if (axis === null) {
     return { skip: warn('flow-direction-unknown', `too little valid DEM within ${reachM} m of the channel to tell the flow direction; give the crest as a line`, damId) };
   }
+
+  // 2b. The dam stands where the point says, not where the search disc is lowest: on a
+  // sloping stream that is its downstream rim. Take the lowest cell on the cross-section
+  // through the point (perpendicular to the flow, within the snap radius) as the channel.
+  {
+    const f = frameAt(grid, pc, pr);
+    let best = Infinity;
+    for (let t = -snapRadiusM; t <= snapRadiusM + 1e-9; t += stepM) {
+      const c = Math.floor(colF + t * -axis.north * f.colPerEastM);
+      const r = Math.floor(rowF + t * axis.east * f.rowPerNorthM);
+      if (c < 0 || c >= width || r < 0 || r >= height) continue;
+      const zc = z[r * width + c] ?? NaN;
+      if (zc < best) {
+        best = zc;
+        channel = r * width + c;
+      }
+    }
+    if (best < Infinity) {
+      bed = best;
+      cr = Math.floor(channel / width);
+      cc = channel - cr * width;
+    }
+  }
+  const frame = frameAt(grid, cc, cr);
   if (axis.slope * 2 * reachM < FLOW_SENSE_MIN_DROP_M) {
     warnings.push(
       warn('flow-sense-uncertain', `the channel falls only ${(axis.slope * 2 * reachM).toFixed(2)} m over ${2 * reachM} m, so which side is upstream is uncertain; set "upstream" or give the crest as a line`, damId),
