@@ -8,10 +8,11 @@ import { describe, expect, it } from 'vitest';
 import { makeGrid, type Grid } from '../src/grid/grid.js';
 import { colToX, rowToY } from '../src/grid/transform.js';
 import type { DamInput } from '../src/inventory.js';
-import { crsFromEpsg } from '../src/io/crs.js';
+import { cellMetrics, crsFromEpsg } from '../src/io/crs.js';
 import type { DemSource } from '../src/io/dem.js';
 import { InputError } from '../src/errors.js';
 import { buildReportMap } from '../src/report/map-build.js';
+import { buildMapFigure } from '../src/report/map-svg.js';
 import { parseReportMap } from '../src/report/map-file.js';
 import { planBlocks, teeDem } from '../src/report/shade-blocks.js';
 import { createRng } from '../src/uncertainty/random.js';
@@ -138,5 +139,44 @@ describe('report-map.json', () => {
     expect(parseReportMap(JSON.stringify(map), 'report-map.json')).toEqual(map);
     expect(() => parseReportMap('{"format":"something-else"}', 'x/report-map.json')).toThrow(InputError);
     expect(() => parseReportMap('{"format":"something-else"}', 'x/report-map.json')).toThrow(/x\/report-map\.json/);
+  });
+
+  it('draws a geographic DEM in metres: the frame\'s width to height is a degree of longitude to one of latitude', async () => {
+    // 0.01° × 0.01° of lon/lat at 60° N. Lengths of a degree on WGS 84 at 60°: longitude 55.800 km,
+    // latitude 111.412 km (standard geodetic tables; from memory), ratio 0.5008.
+    const n = 400;
+    const t = { x0: -110, y0: 60.005, dx: 0.01 / n, dy: -0.01 / n };
+    const z = new Float32Array(n * n);
+    for (let i = 0; i < z.length; i++) z[i] = 500 + (i % n) * 0.01;
+    const crs = crsFromEpsg(4326);
+    const dem: DemSource = {
+      width: n,
+      height: n,
+      transform: t,
+      crs,
+      zUnit: 'metre',
+      zUnitSource: 'assumed-metre',
+      files: ['memory'],
+      async readWindow(col0, row0, cols, rows) {
+        const c0 = Math.max(0, col0);
+        const r0 = Math.max(0, row0);
+        const w = Math.min(n, col0 + cols) - c0;
+        const h = Math.min(n, row0 + rows) - r0;
+        const out = new Float32Array(w * h);
+        for (let r = 0; r < h; r++) out.set(z.subarray((r0 + r) * n + c0, (r0 + r) * n + c0 + w), r * w);
+        const m = cellMetrics(crs, t, r0, h);
+        return { width: w, height: h, transform: { ...t, x0: colToX(t, c0), y0: rowToY(t, r0) }, z: out, cellAreaM2: m.cellAreaM2, cellWidthM: m.cellWidthM, cellHeightM: m.cellHeightM, colOffset: c0, rowOffset: r0 };
+      },
+      async close() {},
+    };
+    const map = await buildReportMap({ dem, dams: [], outlines: [] });
+    expect(map.crs.unit).toBe('degree');
+    expect(map.extent.xmax - map.extent.xmin).toBeCloseTo(0.01, 9);
+    const figure = buildMapFigure(map, [], { ponds: [], influence: null, watersheds: null, streams: null });
+    const frame = /<rect class="map-frame" x="[^"]+" y="[^"]+" width="([^"]+)" height="([^"]+)"/.exec(figure.svg);
+    expect(frame).not.toBeNull();
+    const ratio = Number(frame![1]) / Number(frame![2]);
+    expect(Math.abs(ratio / (55.8 / 111.412) - 1)).toBeLessThan(0.005);
+    expect(figure.crsText).toContain('degrees');
   });
 });
