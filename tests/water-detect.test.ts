@@ -181,3 +181,31 @@ describe('water mask', () => {
     if (!none.surface) expect(none.reason).toBe('no-mask');
   });
 });
+
+describe('interpolated water (a TIN across a lidar water void): locally smooth, not level', () => {
+  it('finds the whole surface, its level where it meets the banks', () => {
+    // The pond of a V-shaped valley, its surface sagging smoothly from the level at the shore to 8 cm below it
+    // in the middle (a TIN between shore points): 3 × 3 ranges of a few millimetres, a 5–95 % spread of centimetres.
+    const level = 0.9871;
+    const scene = vPond(10, 0.01, level, 0.5, 0, 1);
+    const w = scene.wet.width;
+    const z = new Float32Array(scene.wet.z);
+    for (const i of scene.waterCells) {
+      const col = i % w;
+      const row = (i - col) / w;
+      const x = (col + 0.5) * 0.5 - (w * 0.5) / 2;
+      const y = (Math.ceil((level / 0.01 + 20) / 0.5) - row) * 0.5;
+      const halfWidth = 10 * (level - 0.01 * y);
+      const u = Math.max(0, 1 - Math.abs(x) / Math.max(halfWidth, 1e-9));
+      z[i] = level - 0.08 * u * Math.min(1, y / 20) * Math.min(1, (level / 0.01 - y) / 20);
+    }
+    const tin = { ...scene.wet, z };
+    const out = detectWaterSurface(tin, scene.setup, DEFAULT_WATER_PARAMS);
+    const s = out.surface!;
+    expect(Math.abs(s.areaM2 / scene.waterAreaM2 - 1)).toBeLessThan(0.03);
+    expect(Math.abs(s.levelM - level)).toBeLessThan(0.01);
+    let inside = 0;
+    for (const i of s.cells) if (scene.waterCells.has(i)) inside++;
+    expect(inside).toBeGreaterThan(0.97 * scene.waterCells.size);
+  });
+});

@@ -15,9 +15,10 @@
  * 2. Level: a priority-flood on the smoothed surface from the cells just
  *    upstream of the crest visits cells by their join level, up to
  *    `outlierK`·σ above the first (and no more than tol above the crest,
- *    unless the first is); the water level W₁ is where their
- *    smoothed elevations crowd most (a water surface is one sharp peak,
- *    banks spread thinly above it).
+ *    unless the first is); the water level W₁ is the lowest peak of their
+ *    smoothed elevations that holds at least a twentieth of the largest (a
+ *    water surface is one sharp peak at the bottom; banks and a floodplain
+ *    above the water make others, higher up).
  * 3. Noise: the flat's own noise is measured on those cells (1.4826 × the
  *    median absolute deviation of their elevations from W₁), never taken
  *    above the stated σ (`rmseZM`); the window shrinks to what that noise
@@ -33,14 +34,25 @@
  *    the surface no higher than W₁ + `outlierK`·σ are water (noise), higher
  *    ones are islands. The water level is the median elevation of the water
  *    cells.
+ * 4b. Interpolated water: when the surface is locally smooth (the median
+ *    3 × 3 elevation range of its cells under 2 cm: a TIN across a lidar
+ *    water void, or a hydro-flattened surface) but not level (its 5–95 %
+ *    elevation spread over 2·tol: a TIN sags between shore points), it is
+ *    grown through the connected smooth cells up to 0.15 m above W₁, its
+ *    level is the 95th percentile of its elevations (where it meets the
+ *    banks), and the cells around it up to its 99th percentile are added
+ *    (their windows reach onto the bank, so they are not smooth).
  * 5. Acceptance: the surface is kept when its area is at least `minAreaM2`;
  *    it stands at least `minDepthM` above the bed at the dam (the channel of
  *    a dry valley is its own lowest level; water backed up by a dam stands
  *    above the bed); its lower tail (level minus 5th percentile) is no more
- *    than 2.5σ + tol (on water only noise lies below the level; a dry
- *    channel's flat has its bed below); and a plane fitted to it has a relief
- *    across the surface of at most tol plus three times what noise alone
- *    gives such a fit (a level surface, not a sloping valley floor).
+ *    than 2.5σ + tol and at most 0.5 % of its cells (5 at least) have a
+ *    smoothed elevation 4 smoothed-noise σ below it (on water only noise
+ *    lies below the level; a dry floodplain's flat has its channel below:
+ *    both tests are skipped for interpolated water, whose sags are no
+ *    ground); and a plane fitted to it has a relief across the surface of at
+ *    most tol plus three times what noise alone gives such a fit, or 0.15 m
+ *    for interpolated water (a level surface, not a sloping valley floor).
  *
  * Shore: on banks gentler than about 1:20 (in cells of the DEM) a cell ring
  * of dry ground within the tolerance of the level is taken for water; on
@@ -116,6 +128,135 @@ const DIP_Z = 4;
 /** A surface may hold this many dip cells, or this share of its cells, before it counts as a dry flat with a channel in it. */
 const MAX_DIP_CELLS = 5;
 const MAX_DIP_SHARE = 0.005;
+
+/**
+ * A surface whose cells' 3 × 3 elevation range has a median below this, m,
+ * is an interpolated one (flat water in a lidar DEM: TIN-filled or
+ * hydro-flattened). 2 cm: a project choice, below the range lidar noise or
+ * ground texture leave on nine cells (QL2 noise alone gives about 0.3 m).
+ */
+const SMOOTH_WATER_M = 0.02;
+/** An interpolated surface's level: this quantile of its elevations (the interpolation runs between shore points at the water's level and sags between them). */
+const SMOOTH_LEVEL_QUANTILE = 0.95;
+
+/** The shore ring of an interpolated surface takes the cells no higher than this quantile of its elevations (its top, short of outliers). */
+const SHORE_QUANTILE = 0.99;
+
+/** Range of the valid, non-blocked elevations in the 3 × 3 window of cell i, m. */
+function localRangeM(z: Float32Array, mark: Uint8Array, width: number, height: number, i: number): number {
+  const col = i % width;
+  const row = (i - col) / width;
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let rr = Math.max(0, row - 1); rr <= Math.min(height - 1, row + 1); rr++) {
+    for (let cc = Math.max(0, col - 1); cc <= Math.min(width - 1, col + 1); cc++) {
+      const j = rr * width + cc;
+      if ((mark[j]! & BLOCKED) !== 0) continue;
+      const v = z[j]!;
+      if (v !== v) continue;
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
+    }
+  }
+  return hi - lo;
+}
+
+/** Grows the region (first `count` cells) through 8-connected smooth cells no higher than `topM`; returns the new count. */
+function growSmooth(s: WaterScratch, count: number, grid: Grid, b: WaterBox, topM: number): number {
+  const { width, height, z } = grid;
+  const mark = s.mark;
+  let top = 0;
+  for (let k = 0; k < count; k++) {
+    const i = s.cells[k]!;
+    touch(s, i, IN_REGION);
+    if (top === s.stack.length) growStack(s);
+    s.stack[top++] = i;
+  }
+  while (top > 0) {
+    const i = s.stack[--top]!;
+    const col = i % width;
+    const row = (i - col) / width;
+    for (let dr = -1; dr <= 1; dr++) {
+      const rr = row + dr;
+      if (rr < b.row0 || rr >= b.row1) continue;
+      for (let dc = -1; dc <= 1; dc++) {
+        const cc = col + dc;
+        if ((dc === 0 && dr === 0) || cc < b.col0 || cc >= b.col1) continue;
+        const j = rr * width + cc;
+        if ((mark[j]! & (BLOCKED | IN_REGION)) !== 0) continue;
+        const v = z[j]!;
+        if (!(v <= topM) || localRangeM(z, mark, width, height, j) >= SMOOTH_WATER_M) continue;
+        touch(s, j, IN_REGION);
+        if (count === s.cells.length) growLists(s);
+        s.cells[count++] = j;
+        if (top === s.stack.length) growStack(s);
+        s.stack[top++] = j;
+      }
+    }
+  }
+  return count;
+}
+
+/** Adds the neighbours of the region no higher than `limitM` (the shore ring, whose windows reach onto the bank); returns the new count. */
+function addShore(s: WaterScratch, count: number, grid: Grid, b: WaterBox, limitM: number): number {
+  const { width, z } = grid;
+  const mark = s.mark;
+  for (let k = 0; k < count; k++) touch(s, s.cells[k]!, IN_REGION);
+  const n = count;
+  for (let k = 0; k < n; k++) {
+    const i = s.cells[k]!;
+    const col = i % width;
+    const row = (i - col) / width;
+    for (let dr = -1; dr <= 1; dr++) {
+      const rr = row + dr;
+      if (rr < b.row0 || rr >= b.row1) continue;
+      for (let dc = -1; dc <= 1; dc++) {
+        const cc = col + dc;
+        if ((dc === 0 && dr === 0) || cc < b.col0 || cc >= b.col1) continue;
+        const j = rr * width + cc;
+        if ((mark[j]! & (BLOCKED | IN_REGION)) !== 0 || !(z[j]! <= limitM)) continue;
+        touch(s, j, IN_REGION);
+        if (count === s.cells.length) growLists(s);
+        s.cells[count++] = j;
+      }
+    }
+  }
+  return count;
+}
+
+/** The q-quantile of the first n values (reorders them). */
+function quantile(values: Float64Array, n: number, q: number): number {
+  if (n === 0) return NaN;
+  const v = values.subarray(0, n).sort();
+  return v[Math.min(n - 1, Math.floor(q * (n - 1)))]!;
+}
+
+/** Largest relief of a plane fitted to an interpolated surface, m: TIN sags of a few centimetres to a decimetre are allowed (a project choice). */
+const SMOOTH_RELIEF_M = 0.15;
+
+/** Median over `cells` of the range of valid, non-blocked elevations in each cell's 3 × 3 window, m (uses `buf` as scratch). */
+function medianLocalRangeM(z: Float32Array, mark: Uint8Array, width: number, height: number, cells: Int32Array, buf: Float64Array): number {
+  const n = Math.min(cells.length, buf.length);
+  for (let k = 0; k < n; k++) {
+    const i = cells[k]!;
+    const col = i % width;
+    const row = (i - col) / width;
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (let rr = Math.max(0, row - 1); rr <= Math.min(height - 1, row + 1); rr++) {
+      for (let cc = Math.max(0, col - 1); cc <= Math.min(width - 1, col + 1); cc++) {
+        const j = rr * width + cc;
+        if ((mark[j]! & BLOCKED) !== 0) continue;
+        const v = z[j]!;
+        if (v !== v) continue;
+        if (v < lo) lo = v;
+        if (v > hi) hi = v;
+      }
+    }
+    buf[k] = hi - lo;
+  }
+  return n > 0 ? median(buf, n) : Infinity;
+}
 
 /** A peak of the level histogram counts when it holds this share of the largest one. */
 const PEAK_SHARE = 0.05;
@@ -193,6 +334,7 @@ export interface WaterBox {
 const BLOCKED = 1;
 const SEEN1 = 2;
 const SEEN2 = 4;
+const IN_REGION = 8;
 
 /** Reusable buffers: one byte a cell, cleared after each dam through the list of touched cells. */
 export interface WaterScratch {
@@ -343,25 +485,42 @@ export function detectWaterSurface(
       }
     }
     count = fillHoles(s, count, grid, capM);
-    const { areaM2, reachesEdge, fit } = measure(grid, s.cells, count, b);
+    // An interpolated surface (TIN across a lidar water void, or hydro-flattened) is locally smooth. A flattened
+    // one is level and already found; a TIN one need not be level: it is all the smooth cells connected to the
+    // water found, its level where it meets the banks.
+    const smooth = medianLocalRangeM(z, mark, width, height, s.cells.subarray(0, count), s.values) < SMOOTH_WATER_M;
     for (let k = 0; k < count; k++) s.values[k] = z[s.cells[k]!]!;
+    const spreadM = count > 0 ? quantile(s.values, count, 0.95) - s.values[Math.floor(0.05 * (count - 1))]! : 0;
+    const interpolated = smooth && spreadM > 2 * tolEff;
+    let smoothLevelM = NaN;
+    if (interpolated) {
+      count = growSmooth(s, count, grid, b, w1 + SMOOTH_RELIEF_M);
+      for (let k = 0; k < count; k++) s.values[k] = z[s.cells[k]!]!;
+      smoothLevelM = quantile(s.values, count, SMOOTH_LEVEL_QUANTILE);
+      count = addShore(s, count, grid, b, quantile(s.values, count, SHORE_QUANTILE));
+      count = fillHoles(s, count, grid, smoothLevelM + params.outlierK * sigmaM);
+    }
+    const { areaM2, reachesEdge, fit } = measure(grid, s.cells, count, b);
     const cells = s.cells.slice(0, count);
-    const levelM = count > 0 ? median(s.values, count) : w1;
+    for (let k = 0; k < count; k++) s.values[k] = z[cells[k]!]!;
+    const medianM = count > 0 ? median(s.values, count) : w1;
+    const levelM = interpolated ? smoothLevelM : medianM;
     // The lower tail: on water only noise lies below the level (median − 5th percentile = 1.645σ for normal errors).
-    const lowTailM = count > 0 ? levelM - s.values[Math.floor(0.05 * (count - 1))]! : 0;
+    const lowTailM = count > 0 ? medianM - s.values[Math.floor(0.05 * (count - 1))]! : 0;
     // Cells whose smoothed elevation lies clearly below the level: on water, noise alone almost never puts one there
     // (P(z < −4σ) ≈ 3·10⁻⁵); a channel or hollow inside a dry flat does, as a line or patch of them.
-    const dipM = levelM - DIP_Z * noiseS;
+    const dipM = medianM - DIP_Z * noiseS;
     let dips = 0;
     for (let k = 0; k < count; k++) if (windowMean(z, mark, width, height, cells[k]!, rEff, capM) < dipM) dips++;
     const reliefM = fit.reliefM();
     // Step 5: acceptance.
     const noiseReliefM = count > 2 ? 3 * Math.sqrt(24 / count) * sigmaM : Infinity;
+    const maxReliefM = Math.max(params.maxReliefTol * tolEff + noiseReliefM, smooth ? SMOOTH_RELIEF_M : 0);
     let reason: NoWaterReason | null = null;
     if (count === 0 || areaM2 < params.minAreaM2) reason = 'too-small';
     else if (levelM - dam.bedElevM < params.minDepthM) reason = 'too-shallow';
-    else if (lowTailM > LOW_TAIL_Z * sigmaM + tolEff || dips > Math.max(MAX_DIP_CELLS, MAX_DIP_SHARE * count)) reason = 'dips-below';
-    else if (reliefM > params.maxReliefTol * tolEff + noiseReliefM) reason = 'tilted';
+    else if (!smooth && (lowTailM > LOW_TAIL_Z * sigmaM + tolEff || dips > Math.max(MAX_DIP_CELLS, MAX_DIP_SHARE * count))) reason = 'dips-below';
+    else if (reliefM > maxReliefM) reason = 'tilted';
     if (reason !== null) return { surface: null, reason, areaM2, levelM, reliefM };
     return { surface: { levelM, cells, areaM2, source: 'detected', reachesEdge, reliefM } };
   } finally {
