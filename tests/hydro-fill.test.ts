@@ -2,6 +2,7 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { makeGrid } from '../src/grid/grid.js';
 import { fillDepressions } from '../src/hydro/fill.js';
+import { CellSorter } from '../src/hydro/sort-cells.js';
 import { createRng } from '../src/uncertainty/random.js';
 
 /**
@@ -144,5 +145,26 @@ describe('fillDepressions (priority-flood)', () => {
     expect(filledZ[6]).toBe(7);
     expect(filledZ[0]).toBe(10);
     for (let i = 0; i < z.length; i++) expect(filledZ[i]).toBeGreaterThanOrEqual(z[i] ?? 0);
+  });
+});
+
+describe('CellSorter (the flood\'s priority order)', () => {
+  it('orders cells like a stable comparison sort (ECMAScript Array.prototype.sort), NaN left out', () => {
+    const rng = createRng(5);
+    const sorter = new CellSorter(5000);
+    for (const n of [1, 7, 1000, 5000]) {
+      const values = new Float32Array(n);
+      for (let i = 0; i < n; i++) {
+        const u = rng();
+        // Negative and positive values, ties, zeros of both signs, NaN.
+        values[i] = u < 0.05 ? NaN : u < 0.1 ? -0 : u < 0.15 ? 0 : Math.round((u - 0.5) * 2000) / 8;
+      }
+      const out = new Int32Array(n);
+      const count = sorter.sort(values, out);
+      const expected = Array.from({ length: n }, (_, i) => i)
+        .filter((i) => !Number.isNaN(values[i] ?? NaN))
+        .sort((a, b) => (values[a] ?? 0) - (values[b] ?? 0) || (Object.is(values[a], -0) ? -1 : 0) - (Object.is(values[b], -0) ? -1 : 0) || a - b);
+      expect(Array.from(out.subarray(0, count))).toEqual(expected);
+    }
   });
 });
