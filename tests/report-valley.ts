@@ -12,6 +12,7 @@ import proj4 from 'proj4';
 import { crsFromEpsg } from '../src/io/crs.js';
 import { writeGeoTiff } from '../src/io/geotiff-write.js';
 import { defaultParams, runEstimate } from '../src/pipeline/run.js';
+import { defaultUncertaintyParams } from '../src/uncertainty/params.js';
 import { createRng } from '../src/uncertainty/random.js';
 
 export const VALLEY_EPSG = 32612;
@@ -80,8 +81,7 @@ export async function makeValleyRun(options: { draws?: number } = {}): Promise<V
   };
   await writeFile(join(dir, 'dams.geojson'), JSON.stringify(dams));
   const outDir = join(dir, 'out');
-  const base = defaultParams();
-  const params = { ...base, ...(base.uncertainty ? { uncertainty: { ...base.uncertainty, draws: options.draws ?? 0 } } : {}) };
+  const params = { ...defaultParams(), uncertainty: { ...defaultUncertaintyParams(), draws: options.draws ?? 0 } };
   await runEstimate({ demPaths: [join(dir, 'dem.tif')], damsPath: join(dir, 'dams.geojson'), outDir, params });
   return { dir, outDir, summaryText: await readFile(join(outDir, 'summary.json'), 'utf8') };
 }
