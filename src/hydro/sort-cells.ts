@@ -9,7 +9,7 @@ export class CellSorter {
   private keysA: Uint32Array;
   private keysB: Uint32Array;
   private idsB: Int32Array;
-  private readonly count = new Int32Array(2048);
+  private readonly count = new Int32Array(3 * 2048); // one histogram per pass
 
   constructor(capacity: number) {
     this.keysA = new Uint32Array(capacity);
@@ -26,33 +26,38 @@ export class CellSorter {
     const bits = new Uint32Array(values.buffer, values.byteOffset, values.length);
     let keys = this.keysA;
     let ids = out;
+    const count = this.count;
+    count.fill(0);
     let n = 0;
     for (let i = 0; i < values.length; i++) {
       if (Number.isNaN(values[i] ?? NaN)) continue;
       const b = bits[i] ?? 0;
-      keys[n] = (b & 0x80000000) !== 0 ? ~b >>> 0 : (b | 0x80000000) >>> 0; // order-preserving
+      const key = (b & 0x80000000) !== 0 ? ~b >>> 0 : (b | 0x80000000) >>> 0; // order-preserving
+      keys[n] = key;
       ids[n] = i;
       n++;
+      const d0 = key & 2047;
+      const d1 = 2048 + ((key >>> 11) & 2047);
+      const d2 = 4096 + (key >>> 22);
+      count[d0] = (count[d0] ?? 0) + 1;
+      count[d1] = (count[d1] ?? 0) + 1;
+      count[d2] = (count[d2] ?? 0) + 1;
     }
     let keysTo = this.keysB;
     let idsTo = this.idsB;
-    const count = this.count;
-    for (let shift = 0; shift < 32; shift += 11) {
-      count.fill(0);
-      for (let k = 0; k < n; k++) {
-        const d = ((keys[k] ?? 0) >>> shift) & 2047;
-        count[d] = (count[d] ?? 0) + 1;
-      }
-      if ((count[((keys[0] ?? 0) >>> shift) & 2047] ?? 0) === n) continue; // one digit for all: nothing to do
+    for (let pass = 0; pass < 3; pass++) {
+      const shift = 11 * pass;
+      const base = 2048 * pass;
+      if (n === 0 || (count[base + (((keys[0] ?? 0) >>> shift) & 2047)] ?? 0) === n) continue; // one digit for all
       let sum = 0;
-      for (let d = 0; d < 2048; d++) {
+      for (let d = base; d < base + 2048; d++) {
         const c = count[d] ?? 0;
         count[d] = sum;
         sum += c;
       }
       for (let k = 0; k < n; k++) {
         const key = keys[k] ?? 0;
-        const d = (key >>> shift) & 2047;
+        const d = base + ((key >>> shift) & 2047);
         const p = count[d] ?? 0;
         count[d] = p + 1;
         keysTo[p] = key;
