@@ -142,6 +142,18 @@ interface Found {
   cells: Int32Array;
 }
 
+/**
+ * The bed at the dam under today's water, m: the setup's bed (the dry
+ * channel just below a dam that stands out in the DEM, else the lowest crest
+ * cell); for a dam that stands out and has a measured height, the crest seen
+ * in the DEM minus that height when lower (the channel below may itself lie
+ * under a lower pond's water).
+ */
+export function bedAtDam(setup: CrestSetup): number {
+  if (setup.demVisible && setup.heightSource === 'measured') return Math.min(setup.bedElevM, setup.crestLowM - setup.heightM);
+  return setup.bedElevM;
+}
+
 /** The water-surface stage of one run (see the file comment). */
 export class WaterStage {
   private readonly usedLabels = new Set<number>();
@@ -236,11 +248,11 @@ export class WaterStage {
       r.water_surface_elev_m = levelM;
       r.water_surface_source = surface.source;
       r.freeboard_m = r.crest_elev_m === null ? null : r.crest_elev_m - levelM;
-      r.depth_at_dam_m = levelM - setup.bedElevM;
+      r.depth_at_dam_m = levelM - bedAtDam(setup);
       if (cells.length === 0) continue; // its water is another dam's
       let areaM2 = 0;
       for (let j = 0; j < cells.length; j++) areaM2 += grid.cellAreaM2[(cells[j]! - (cells[j]! % width)) / width]!;
-      const bedAtDamM = setup.bedElevM;
+      const bedAtDamM = bedAtDam(setup);
       const depthAtDamM = levelM - bedAtDamM;
       // Cells with a bed from the bed DEM, and the rest.
       const bedZ = win.bedZ;
