@@ -134,7 +134,7 @@ export async function estimatePonds(
     const members = group.members.map((k) => work[k]!);
     const waterWindow = await water.window(box);
     if (water.detect(grid, members, box, waterWindow, warnings)) {
-      for (const w of members) cellsVisited += refillOne(grid, w, box, scratch, params, prep);
+      for (const w of members) if (water.affects(w.fill, grid.width)) cellsVisited += refillOne(grid, w, box, scratch, params, prep);
     }
     combineGroup(grid, group.members.map((k) => work[k]!), box, depth!, outlines, work);
     water.below(grid, members, box, waterWindow, depth);

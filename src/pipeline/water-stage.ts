@@ -158,6 +158,8 @@ export function bedAtDam(setup: CrestSetup): number {
 export class WaterStage {
   private readonly usedLabels = new Set<number>();
   private found: Found[] = [];
+  /** Window cells set to a water level by the last `detect`. */
+  private changed: Int32Array = new Int32Array(0);
 
   constructor(
     readonly params: WaterRunParams,
@@ -212,6 +214,7 @@ export class WaterStage {
     });
     const z = grid.z;
     let changed = false;
+    const setCells: number[] = [];
     candidates.forEach((c, k) => {
       const { cells, levelM } = c.surface;
       const mine: number[] = [];
@@ -224,13 +227,45 @@ export class WaterStage {
           const label = win.maskLabels[i]!;
           if (label > 0) this.usedLabels.add(label);
         }
+        if (z[i] !== Math.fround(levelM)) setCells.push(i);
         z[i] = levelM;
         changed = true;
       }
       this.found.push({ member: c.member, surface: c.surface, cells: Int32Array.from(mine) });
       this.warnAbout(c.member, c.surface, mine.length, warnings);
     });
-    return changed;
+    this.changed = Int32Array.from(setCells);
+    return changed && setCells.length > 0;
+  }
+
+  /**
+   * True when the last `detect` changed a cell within one cell of the fill's
+   * flooded cells' box (the fill may then differ on the changed window).
+   */
+  affects(fill: PondFill | undefined, width: number): boolean {
+    if (!fill || this.changed.length === 0) return false;
+    const order = fill.order;
+    if (order.length === 0) return true;
+    let c0 = Infinity;
+    let c1 = -Infinity;
+    let r0 = Infinity;
+    let r1 = -Infinity;
+    for (let k = 0; k < order.length; k++) {
+      const i = order[k]!;
+      const col = i % width;
+      const row = (i - col) / width;
+      if (col < c0) c0 = col;
+      if (col > c1) c1 = col;
+      if (row < r0) r0 = row;
+      if (row > r1) r1 = row;
+    }
+    for (let k = 0; k < this.changed.length; k++) {
+      const i = this.changed[k]!;
+      const col = i % width;
+      const row = (i - col) / width;
+      if (col >= c0 - 1 && col <= c1 + 1 && row >= r0 - 1 && row <= r1 + 1) return true;
+    }
+    return false;
   }
 
   /**
