@@ -127,6 +127,15 @@ describe('a pond holding water, with a bed DEM', () => {
     expect(withBed.inputs.map((i) => i.role)).toEqual(['dem', 'dams', 'bed-dem']);
   });
 
+  it('warns when the bed DEM is offset from the DEM on the dry ground of the pond (another datum)', async () => {
+    const z = new Float32Array(dry.z);
+    for (let i = 0; i < z.length; i++) z[i] = z[i]! + 0.5;
+    await writeDem(join(dir, 'bed-offset.tif'), { ...dry, z });
+    const s = await run('offset', join(dir, 'wet.tif'), [crest('main', 0, { height_m: 1 })], { bedDem: join(dir, 'bed-offset.tif') });
+    const w = s.warnings.find((x) => x.code === 'bed-dem-offset');
+    expect(w?.message).toMatch(/0\.50 m below the bed DEM/);
+  });
+
   it('refuses a bed DEM in another CRS, naming the gdalwarp command that fixes it', async () => {
     await writeDem(join(dir, 'bed-utm13.tif'), dry, 32613);
     const err = await run('bad-crs', join(dir, 'wet.tif'), [crest('main', 0, { height_m: 1 })], { bedDem: join(dir, 'bed-utm13.tif') }).catch((e: unknown) => e);
@@ -216,6 +225,23 @@ describe('a pond holding water, from the DEM alone', () => {
       expect(v / want).toBeCloseTo(1, 4);
       expect(s.parameters['below_model']).toBe(name === 'power' ? 'power-law' : 'reconstructed');
       await depth.close();
+    }
+  });
+
+  it('continues the stage–storage curve below the surface: monotone, the water below at the surface, the whole pond at the top', () => {
+    for (const s of [power, rebuilt]) {
+      const d = s.dams[0]!;
+      const rows = d.stage_storage;
+      for (let k = 1; k < rows.length; k++) {
+        expect(rows[k]![1]).toBeGreaterThanOrEqual(rows[k - 1]![1] - 1e-9);
+        expect(rows[k]![2]).toBeGreaterThanOrEqual(rows[k - 1]![2] - 1e-9);
+      }
+      expect(rows[0]![2]).toBeLessThan(1e-6);
+      expect(rows[rows.length - 1]![2]).toBeCloseTo(d.standalone_volume_m3, 6);
+      expect(d.standalone_volume_m3).toBeCloseTo(d.volume_m3, 6);
+      // The last row at or below today's level holds at most the water below the surface.
+      const below = rows.filter((r) => r[0] < LEVEL);
+      expect(below[below.length - 1]![2]).toBeLessThanOrEqual(d.volume_below_surface_m3! + 1e-6);
     }
   });
 

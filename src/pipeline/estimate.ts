@@ -137,7 +137,7 @@ export async function estimatePonds(
       for (const w of members) if (water.affects(w.fill, grid.width)) cellsVisited += refillOne(grid, w, box, scratch, params, prep);
     }
     combineGroup(grid, group.members.map((k) => work[k]!), box, depth!, outlines, work);
-    water.below(grid, members, box, waterWindow, depth);
+    water.below(grid, members, box, waterWindow, depth, warnings);
     scenarioTally.addGroup(grid, group.members.map((k) => ({ index: k, result: work[k]!.result, fill: work[k]!.fill })));
     prep?.addGroup(grid, group.members.map((k) => ({ index: k, dam: work[k]!.dam, inTotals: work[k]!.result.in_totals, setup: work[k]!.setup, fill: work[k]!.fill })));
   }

@@ -27,7 +27,7 @@
 import type { Warning } from '../errors.js';
 import type { Grid } from '../grid/grid.js';
 import type { DamInput } from '../inventory.js';
-import { BELOW_MODELS, POWER_P_MEDIAN, volumeBelow, type BelowModel } from '../ponds/below-surface.js';
+import { BELOW_MODELS, POWER_P_MEDIAN, areaAtDepth, volumeBelow, type BelowModel } from '../ponds/below-surface.js';
 import { DEFAULT_RECONSTRUCT_PARAMS, reconstructBed, type ReconstructParams } from '../ponds/bed-reconstruct.js';
 import type { CrestSetup } from '../ponds/crest.js';
 import type { PondFill } from '../ponds/fill.js';
@@ -41,7 +41,7 @@ import {
   type WaterParams,
   type WaterSurface,
 } from '../ponds/water-surface.js';
-import type { BedSource, DamResult } from './result.js';
+import type { BedSource, DamResult, StageRow } from './result.js';
 import type { CellBox } from './windows.js';
 
 /** Run parameters of the water stage. */
@@ -152,6 +152,49 @@ interface Found {
 export function bedAtDam(setup: CrestSetup): number {
   if (setup.demVisible && setup.heightSource === 'measured') return Math.min(setup.bedElevM, setup.crestLowM - setup.heightM);
   return setup.bedElevM;
+}
+
+/** The power-law part of a pond's water below the surface: the area it covers, the depth at the dam, p. */
+interface PowerRest {
+  areaM2: number;
+  depthM: number;
+  p: number;
+}
+
+/**
+ * The water below today's surface when the level stands at hM (below the
+ * surface): cell by cell where the bed is known, by the power law's
+ * stage–area relation A(y) = A·(y/h)^(2/p) elsewhere.
+ */
+function belowAt(
+  hM: number,
+  grid: Grid,
+  cells: Int32Array,
+  perCell: Float32Array | null,
+  levelM: number,
+  bedAtDamM: number,
+  power: PowerRest | null,
+): { areaM2: number; volumeM3: number } {
+  let areaM2 = 0;
+  let volumeM3 = 0;
+  if (perCell) {
+    const { width } = grid;
+    for (let j = 0; j < cells.length; j++) {
+      const b = perCell[j]!;
+      if (!(b < hM)) continue;
+      const i = cells[j]!;
+      const a = grid.cellAreaM2[(i - (i % width)) / width]!;
+      areaM2 += a;
+      volumeM3 += a * (Math.min(hM, levelM) - b);
+    }
+  }
+  if (power && power.areaM2 > 0) {
+    const y = hM - bedAtDamM;
+    const a = areaAtDepth(power.areaM2, power.depthM, y, power.p);
+    areaM2 += a;
+    volumeM3 += volumeBelow(a, Math.min(y, power.depthM), power.p);
+  }
+  return { areaM2, volumeM3 };
 }
 
 /** The water-surface stage of one run (see the file comment). */
@@ -272,7 +315,7 @@ export class WaterStage {
    * Water below each found surface, after the group's ponds were combined
    * (fills on the set surface); every member's volume_above_surface_m3.
    */
-  below(grid: Grid, members: WaterMember[], box: CellBox, win: WaterWindow, depth: { box: CellBox; data: Float32Array } | null): void {
+  below(grid: Grid, members: WaterMember[], box: CellBox, win: WaterWindow, depth: { box: CellBox; data: Float32Array } | null, warnings: Warning[] = []): void {
     const { width } = grid;
     for (const m of members) m.result.volume_above_surface_m3 = m.result.volume_m3;
     for (const f of this.found) {
@@ -296,6 +339,7 @@ export class WaterStage {
       let volumeM3 = 0;
       let maxBelowM = 0;
       let perCell: Float32Array | null = null;
+      let powerRest: PowerRest | null = null;
       let source: BedSource;
       if (this.params.belowModel === 'reconstructed' || bedDemCells === cells.length) {
         const bed = reconstructBed(grid, cells, levelM, setup.crestCells, bedAtDamM, this.params.reconstruct, bedZ, setup.downstreamCells);
@@ -325,7 +369,16 @@ export class WaterStage {
         if (restAreaM2 > 0 && depthAtDamM > maxBelowM) maxBelowM = depthAtDamM;
         source = bedDemCells > 0 ? 'bed-dem+power-law' : 'power-law';
         r.power_p = this.params.powerP;
+        powerRest = { areaM2: restAreaM2, depthM: depthAtDamM, p: this.params.powerP };
       }
+      if (bedZ && bedDemCells > 0) this.checkDatum(member, grid, bedZ, cells, warnings);
+      // The stage–storage curve from the bed: the model's below today's water, the fill's above it plus all the water below.
+      r.stage_storage = r.stage_storage.map(([h, a, v]): StageRow => {
+        if (h >= levelM) return [h, a, v + volumeM3];
+        const below = belowAt(h, grid, cells, perCell, levelM, bedAtDamM, powerRest);
+        return [h, below.areaM2, below.volumeM3];
+      });
+      r.standalone_volume_m3 += volumeM3;
       r.water_surface_area_m2 = areaM2;
       r.bed_source = source;
       const aboveM3 = r.volume_m3;
@@ -352,6 +405,36 @@ export class WaterStage {
       }
     }
     this.found = [];
+  }
+
+  /**
+   * A bed DEM on another vertical datum (or from a survey with a shift)
+   * shows as an offset on the dry ground the pond covers: the median of DEM
+   * minus bed DEM there is warned about beyond 3σ (σ the DEM's RMSE, at
+   * least 0.1 m).
+   */
+  private checkDatum(member: WaterMember, grid: Grid, bedZ: Float32Array, water: Int32Array, warnings: Warning[]): void {
+    const fill = member.fill;
+    if (!fill) return;
+    const isWater = new Set<number>();
+    for (let j = 0; j < water.length; j++) isWater.add(water[j]!);
+    const diffs: number[] = [];
+    for (let k = 0; k < fill.order.length; k++) {
+      const i = fill.order[k]!;
+      const b = bedZ[i]!;
+      if (b !== b || isWater.has(i)) continue;
+      diffs.push(grid.z[i]! - b);
+    }
+    if (diffs.length < 25) return;
+    diffs.sort((a, b) => a - b);
+    const med = diffs[diffs.length >> 1]!;
+    const limitM = 3 * Math.max(0.1, this.params.water.rmseZM);
+    if (Math.abs(med) > limitM) {
+      const id = member.dam.id;
+      const message = `the DEM stands ${med.toFixed(2)} m ${med > 0 ? 'above' : 'below'} the bed DEM on the dry ground of the pond (median of ${diffs.length} cells): check that both use the same vertical datum and units`;
+      warnings.push({ code: 'bed-dem-offset', damId: id, message: `dam ${id}: ${message}` });
+      member.result.warnings.push(message);
+    }
   }
 
   /** Run-level warnings once every group is done (mask features no pond touched). */
