@@ -274,6 +274,17 @@ export class WaterStage {
         z[i] = levelM;
         changed = true;
       }
+      // Connectors are lowered to the level (never raised), not counted: the water stays one body for the fill.
+      const links = c.surface.connectors;
+      if (links) {
+        for (let j = 0; j < links.length; j++) {
+          const i = links[j]!;
+          if (owner[i] !== 0 || !(z[i]! > levelM)) continue;
+          z[i] = levelM;
+          setCells.push(i);
+          changed = true;
+        }
+      }
       this.found.push({ member: c.member, surface: c.surface, cells: Int32Array.from(mine) });
       this.warnAbout(c.member, c.surface, mine.length, warnings);
     });

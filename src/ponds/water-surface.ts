@@ -299,6 +299,12 @@ export interface WaterSurface {
   reachesEdge: boolean;
   /** Relief of a plane fitted to the surface's elevations, m. */
   reliefM: number;
+  /**
+   * Cells the surface was traced through but that are not counted as water
+   * (within 2·tol of the level: a noisy neck, or the bank's first ring).
+   * Setting them to the level keeps the water connected for a fill.
+   */
+  connectors?: Int32Array;
 }
 
 /** Why no surface was kept. */
@@ -456,6 +462,7 @@ export function detectWaterSurface(
       s.stack[top++] = a === 2 ? i : ~i;
     }
     let count = 0;
+    const connectors: number[] = [];
     while (top > 0) {
       let i = s.stack[--top]!;
       if (i >= 0) {
@@ -463,6 +470,7 @@ export function detectWaterSurface(
         s.cells[count++] = i;
       } else {
         i = ~i;
+        connectors.push(i);
       }
       const col = i % width;
       const row = (i - col) / width;
@@ -522,7 +530,7 @@ export function detectWaterSurface(
     else if (!smooth && (lowTailM > LOW_TAIL_Z * sigmaM + tolEff || dips > Math.max(MAX_DIP_CELLS, MAX_DIP_SHARE * count))) reason = 'dips-below';
     else if (reliefM > maxReliefM) reason = 'tilted';
     if (reason !== null) return { surface: null, reason, areaM2, levelM, reliefM };
-    return { surface: { levelM, cells, areaM2, source: 'detected', reachesEdge, reliefM } };
+    return { surface: { levelM, cells, areaM2, source: 'detected', reachesEdge, reliefM, connectors: Int32Array.from(connectors) } };
   } finally {
     clearMarks(s);
   }
