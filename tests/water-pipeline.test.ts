@@ -288,6 +288,24 @@ describe('bad input and odd water', () => {
     expect(unused[0]!.message).not.toMatch(/'pond'/);
   });
 
+  it('takes water from a GeoTIFF mask on the DEM grid, and warns about mask water bodies that touch no pond', async () => {
+    const scene = flattenPond(dry, makeDam({ id: 'main', lines: [[[-CREST_HALF_M, 0], [CREST_HALF_M, 0]]], heightM: 1, upstream: 'left' }), LEVEL);
+    const mask = new Float32Array(dry.z.length);
+    for (const i of scene.waterCells) mask[i] = 1;
+    // A stray water body below the dam: 3 × 3 cells in the corner.
+    for (let r = dry.height - 4; r < dry.height - 1; r++) for (let c = 1; c < 4; c++) mask[r * dry.width + c] = 1;
+    await writeDem(join(dir, 'mask.tif'), { ...dry, z: mask });
+    const s = await run('raster-mask', join(dir, 'wet.tif'), [crest('main', 0, { height_m: 1 })], { waterMask: join(dir, 'mask.tif') });
+    const d = s.dams[0]!;
+    expect(d.water_surface_source).toBe('mask');
+    expect(d.water_surface_area_m2).toBe(wetArea);
+    expect(d.water_surface_elev_m!).toBeCloseTo(LEVEL, 6);
+    const unused = s.warnings.filter((w) => w.code === 'water-mask-unused');
+    expect(unused).toHaveLength(1);
+    expect(unused[0]!.message).toMatch(/^1 water bodies .*\(2 m²\)/);
+    expect(s.inputs.map((i) => i.role)).toEqual(['dem', 'dams', 'water-mask']);
+  });
+
   it("counts a cascade once: the lower dam's water drowns the upper dam, whose row holds none of it", async () => {
     // The upper crest at y = 30 m stands 0.2 m above the bed there (S·30 = 0.3 m): under today's water (0.687 m).
     const s = await run('cascade', join(dir, 'wet.tif'), [crest('main', 0, { height_m: 1 }), crest('upper', 30, { height_m: 0.2 })]);
