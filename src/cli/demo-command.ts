@@ -21,7 +21,7 @@ export function addDemoCommand(program: Command): void {
     .command('demo')
     .description('generate a fictional beaver valley (DEM and dam inventory) and run the estimate on it')
     .option('--out <dir>', 'folder for the demo inputs and results', 'pondage-demo')
-    .option('--seed <n>', 'seed of the generated valley (the same seed gives the same valley)', '20261201')
+    .option('--seed <n>', 'seed of the generated valley and of the Monte Carlo draws (the same seed gives the same files)', '20261201')
     .option('-q, --quiet', 'print nothing but errors');
   addParamOptions(cmd).action(async (flags: DemoFlags) => {
     const seed = parseNumber(flags.seed, '--seed', { integer: true, min: 0, max: 2 ** 32 - 1 });

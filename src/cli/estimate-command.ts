@@ -7,9 +7,10 @@ import { parseLengthM, parseNumber } from './options.js';
 import { progressBar } from './progress.js';
 import { runTable } from './table.js';
 import { addWaterModelOptions, waterParamsFromFlags, type WaterModelFlags } from './water-options.js';
+import { addSeedOption, addUncertaintyOptions, uncertaintyFromFlags, type UncertaintyFlags } from './uncertainty-options.js';
 
 /** Flags shared by every command that runs an estimate (estimate, demo). */
-export interface ParamFlags extends WaterModelFlags {
+export interface ParamFlags extends WaterModelFlags, UncertaintyFlags {
   defaultHeight?: string;
   maxReach?: string;
   stageStep?: string;
@@ -21,7 +22,7 @@ export interface ParamFlags extends WaterModelFlags {
 /** Adds the estimate parameters' flags to a command; the option text is the CLI reference. */
 export function addParamOptions(cmd: Command): Command {
   const d = defaultParams();
-  return addWaterModelOptions(cmd)
+  return addUncertaintyOptions(addWaterModelOptions(cmd))
     .option('--default-height <length>', `crest height above the bed for dams with no measured height that do not stand out in the DEM (m, or add ft / us-ft)`, `${DEFAULT_POND_PARAMS.defaultHeightM}`)
     .option('--max-reach <length>', 'largest distance a pond may reach from its crest; ponds that reach it are flagged "edge" (m)', `${d.maxReachM}`)
     .option('--stage-step <length>', 'level step of the stage–area–storage curves (m)', `${DEFAULT_POND_PARAMS.stageStepM}`)
@@ -40,6 +41,7 @@ export function paramsFromFlags(flags: ParamFlags): EstimateParams {
   if (flags.snapRadius !== undefined) p.snapRadiusM = parseLengthM(flags.snapRadius, '--snap-radius', { min: 0, max: 500 });
   if (flags.minConfidence !== undefined) p.minConfidence = parseNumber(flags.minConfidence, '--min-confidence', { min: 0, max: 1 });
   p.water = waterParamsFromFlags(flags, p);
+  p.uncertainty = uncertaintyFromFlags(flags);
   return p;
 }
 
@@ -68,7 +70,7 @@ export function addEstimateCommand(program: Command): void {
     .option('--water-mask <file>', "today's water as a GeoTIFF (non-zero cells) or GeoJSON polygons, on the DEM's CRS or lon/lat; replaces finding water surfaces in the DEM")
     .option('--bed-dem <file>', "DEM of the bed under today's water (before the dams, a drained year, a bathymetry survey), in the DEM's CRS; used where it has data")
     .option('-q, --quiet', 'print nothing but errors');
-  addParamOptions(cmd).action(async (flags: EstimateFlags) => {
+  addParamOptions(addSeedOption(cmd)).action(async (flags: EstimateFlags) => {
     const params = paramsFromFlags(flags);
     const bar = progressBar('ponds', flags.quiet ?? false);
     try {

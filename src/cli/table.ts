@@ -34,6 +34,14 @@ export function runTable(summary: Summary, options: { maxRows?: number } = {}): 
         `(${t.dams_with_water_surface} ponds hold water today, ${fmt(t.water_surface_area_m2 ?? 0, 0)} m² of it; water below a surface: ${summary.parameters['below_model'] ?? 'model'}, see bed_source)`,
     );
   }
+  const storageBand = t.bands?.storage_m3;
+  const areaBand = t.bands?.inundated_area_m2;
+  if (storageBand && areaBand) {
+    out.push(
+      `bands over ${summary.uncertainty?.draws ?? '?'} draws (p05–p95, median): storage ${fmt(storageBand.p05, 0)}–${fmt(storageBand.p95, 0)} m³ (${fmt(storageBand.p50, 0)}), ` +
+        `inundated ${fmt(areaBand.p05, 0)}–${fmt(areaBand.p95, 0)} m² (${fmt(areaBand.p50, 0)}); per dam in dams.csv (*_p05, *_p50, *_p95, *_mean)`,
+    );
+  }
   out.push('* not in the totals (proposed, or a candidate below --min-confidence): its own pond is shown.');
   return out.join('\n') + '\n';
 }

@@ -12,6 +12,7 @@ import type { Summary } from '../pipeline/summary.js';
 import { FOOT_M, m2ToAcres, m2ToHectares, m3ToAcreFeet } from '../units.js';
 import { WGS84, makeTransform, type Crs } from './crs.js';
 import { toCsv, type CsvValue } from './csv-write.js';
+import { bandProperties, withBandColumns } from './band-columns.js';
 import { writeGeoTiff } from './geotiff-write.js';
 
 /** NoData written in depth.tif (GDAL reads it from the GDAL_NODATA tag). */
@@ -83,7 +84,9 @@ export function damsCsv(dams: readonly DamResult[]): string {
     d.drowned_by, d.warnings.join(' | '),
     ...extraKeys.map((k) => csvValueOf(d.properties[k])),
   ]);
-  return toCsv(header, rows);
+  // Monte Carlo bands beside each figure's column (io/band-columns.ts), when the run made draws.
+  const banded = withBandColumns(header, rows, dams.map((d) => d.bands));
+  return toCsv(banded.header, banded.rows);
 }
 
 function csvValueOf(v: unknown): CsvValue {
@@ -113,7 +116,7 @@ export function pondsGeoJson(run: RunFiles): object {
         ),
       ),
     );
-    const { stage_storage: _curve, properties, warnings, ...figures } = d;
+    const { stage_storage: _curve, properties, warnings, bands, ...figures } = d;
     return {
       type: 'Feature',
       geometry: { type: 'MultiPolygon', coordinates },
@@ -122,6 +125,7 @@ export function pondsGeoJson(run: RunFiles): object {
         pond_kind: o.kind,
         area_acres: m2ToAcres(o.kind === 'attributed' ? d.area_m2 : d.standalone_area_m2),
         volume_acre_ft: m3ToAcreFeet(o.kind === 'attributed' ? d.volume_m3 : d.standalone_volume_m3),
+        ...bandProperties(bands, o.kind === 'attributed' ? ['area_m2', 'volume_m3'] : ['standalone_area_m2', 'standalone_volume_m3']),
         warnings: warnings.join(' | '),
         ...Object.fromEntries(Object.entries(properties).map(([k, v]) => [k in figures ? `property_${k}` : k, v])),
       },

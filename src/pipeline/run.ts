@@ -2,6 +2,8 @@
  * One estimate run end to end: load → ponds → summary → files, written into
  * a folder that appears only when everything succeeded.
  */
+import { join } from 'node:path';
+import { writeDrawsCsv } from '../io/draws-csv.js';
 import { writeFolderAtomically } from '../io/run-folder.js';
 import { openWaterInputs, type WaterInputs } from '../io/water-inputs.js';
 import { writeRunFiles } from '../io/write-run.js';
@@ -12,6 +14,9 @@ import { estimatePonds, type EstimateParams, type EstimateResult, type ProgressF
 import { loadInputs, type LoadOptions } from './load.js';
 import { buildSummary, type Summary } from './summary.js';
 import { TOOL_VERSION } from './version.js';
+import { drawBands } from './draws.js';
+import { DRAWS_FILE } from '../uncertainty/describe.js';
+import { defaultUncertaintyParams } from '../uncertainty/params.js';
 
 /**
  * Largest distance a pond may reach from its crest (m): 1000 m. Beaver ponds
@@ -31,6 +36,7 @@ export function defaultParams(): EstimateParams {
     snapRadiusM: DEFAULT_SNAP_RADIUS_M,
     maxCrestLengthM: DEFAULT_MAX_CREST_LENGTH_M,
     minConfidence: DEFAULT_MIN_CONFIDENCE,
+    uncertainty: defaultUncertaintyParams(),
   };
 }
 
@@ -59,6 +65,7 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
     const { maxReachM, maxCrestLengthM, snapRadiusM } = options.params;
     const shade = collectHillshade(loaded.dem, loaded.dams, maxReachM + maxCrestLengthM / 2 + snapRadiusM);
     const result = await estimatePonds(shade.source, loaded.dams, options.params, options.progress, water);
+    const draws = drawBands(result, options.params);
     const summary = buildSummary({
       version: TOOL_VERSION,
       startedAt,
@@ -71,9 +78,14 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
       assumptions: [...loaded.assumptions, ...(water?.assumptions ?? [])],
       result,
       warnings: [...loaded.warnings, ...result.warnings],
+      draws,
     });
     await writeFolderAtomically(options.outDir, async (dir) => {
       await writeRunFiles(dir, { summary, result, demTransform: loaded.dem.transform, demCrs: loaded.dem.crs });
+      if (draws) {
+        const o = draws.outcome;
+        await writeDrawsCsv(join(dir, DRAWS_FILE), { draws: o.draws, damIds: result.dams.map((d) => d.id), totals: o.totals, damVolumeM3: o.damVolumeM3, damAreaM2: o.damAreaM2 });
+      }
       // Last, so it reads the files above: report-map.json and report.html.
       await writeReportFiles(dir, { dem: loaded.dem, dams: loaded.dams, outlines: result.outlines, collected: shade.blocks });
     });

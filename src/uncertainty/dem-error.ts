@@ -76,6 +76,8 @@ export function drawDemErrors(args: {
       for (let q = p; q < comp.length; q++) {
         const a = supports[comp[p]!]!;
         const b = supports[comp[q]!]!;
+        // Supports further apart than the range share no error.
+        if (p !== q && supportGapM(a, b) >= rangeM) continue;
         const [rr, rp, pr, pp] = supportCovariance(a, b, sill, rangeM, p === q);
         set2(cov, m, 2 * p, 2 * q, rr);
         set2(cov, m, 2 * p, 2 * q + 1, rp);

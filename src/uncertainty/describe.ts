@@ -52,6 +52,7 @@ export function uncertaintyParameters(u: UncertaintyParams): Record<string, numb
     dem_rmse_from: u.demRmseFrom === 'option' ? '--dem-rmse' : u.demRmseFrom,
     dem_error_range_m: u.demErrorRangeM,
     candidate_draws: u.candidates ? 'on' : 'off',
+    power_p_gsd: u.powerPGsd,
     recall: u.recall === null ? 'off' : u.recall,
     recall_sd: u.recall === null ? 'off' : u.recallSd,
   };

@@ -25,7 +25,8 @@
  * reproduces the deterministic figures bit for bit.
  */
 import type { DamStatus } from '../inventory.js';
-import { pondAt, floodedCount } from '../ponds/stage-storage.js';
+import { pondAt } from '../ponds/stage-storage.js';
+import { combineCascade, createCascadeScratch, type CascadeDraw } from './cascade.js';
 import { bandOf, percentileStandardError, tooFewDraws, type Bands } from './bands.js';
 import { drawDemErrors } from './dem-error.js';
 import type { DrawInputs, DamDrawInput, OverlapCluster } from './prepare.js';
@@ -61,6 +62,12 @@ export interface DamVolumeTerm {
   deterministicM3: Float64Array;
   /** Writes dam row `d`'s value in each draw into `out` (one per draw), drawing from `rng`, the dam's own stream for this term. */
   drawDam(d: number, rng: Rng, out: Float64Array): void;
+  /**
+   * Water below a surface the fill cannot see: per dam the surface's
+   * elevation (m) and the deepest water below it (m), NaN where none. A
+   * draw's deepest water is then at least (level − surface) + that depth.
+   */
+  belowSurface?: { surfaceM: Float64Array; maxDepthM: Float64Array };
 }
 
 /** Per-dam figures that get bands, in output order (names as in summary.json's dams[]). */
@@ -148,9 +155,11 @@ export function runDraws(args: {
     if (!inp || !det.estimated) continue;
     const base = d * N;
     drawHeights(inp, det, u, sigmaLn, args.defaultHeightM, args.maxHeightM, heights.subarray(base, base + N));
+    const floor = levelFloor(terms, d, inp.fill.waterLevelM);
     for (let k = 0; k < N; k++) {
       const crest = inp.crestElevM + (heights[base + k]! - inp.heightM);
-      levels[base + k] = crest + (dem.meanErrorM[base + k]! - dem.refErrorM[base + k]!);
+      const level = crest + (dem.meanErrorM[base + k]! - dem.refErrorM[base + k]!);
+      levels[base + k] = level < floor ? floor : level;
     }
     drawInclusion(det, u, seed, included.subarray(base, base + N));
   }
@@ -231,6 +240,7 @@ export function runDraws(args: {
           damAreaM2[base + k] = det.area_m2;
           damVolumeM3[base + k] = det.volume_m3;
           damMaxDepthM[base + k] = det.max_depth_m;
+          fromDeterministic[base + k] = 1;
         } else {
           damAreaM2[base + k] = own.areaM2;
           damVolumeM3[base + k] = own.volumeM3 + extra;
@@ -238,6 +248,17 @@ export function runDraws(args: {
         }
       } else if (included[base + k] === 1 && fromDeterministic[base + k] === 0 && terms.length > 0) {
         damVolumeM3[base + k]! += extra;
+      }
+      if (included[base + k] === 1 && fromDeterministic[base + k] === 0 && damAreaM2[base + k]! > 0) {
+        // Deepest water below a lidar water surface, when a term knows it.
+        for (const term of terms) {
+          const below = term.belowSurface;
+          if (!below) continue;
+          const deep = below.maxDepthM[d]!;
+          if (!(deep >= 0)) continue;
+          const reach = Math.max(0, h - below.surfaceM[d]!) + deep;
+          if (reach > damMaxDepthM[base + k]!) damMaxDepthM[base + k] = reach;
+        }
       }
       const a = damAreaM2[base + k]!;
       const v = damVolumeM3[base + k]!;
@@ -310,6 +331,26 @@ export function runDraws(args: {
   };
 }
 
+/**
+ * Lowest level a draw may take: today's water surface, where the DEM shows
+ * one (water stands there, so whatever holds it is at least that high; in
+ * the level-shift frame of dem-error.ts the condition is level ≥ surface
+ * as the DEM has it), or the deterministic level when that is lower (an
+ * overtopped crest). −Infinity without a surface.
+ */
+/** How far above today's water surface the lowest drawn level stands, m: enough to count the surface's cells as water. */
+const SURFACE_FLOOR_ABOVE_M = 1e-6;
+
+function levelFloor(terms: readonly DamVolumeTerm[], d: number, deterministicLevelM: number): number {
+  let floor = -Infinity;
+  for (const term of terms) {
+    const surface = term.belowSurface?.surfaceM[d];
+    // A micrometre above the surface, so the surface's own cells (joining at it) count as water.
+    if (surface !== undefined && surface === surface) floor = Math.max(floor, Math.min(surface + SURFACE_FLOOR_ABOVE_M, deterministicLevelM));
+  }
+  return floor;
+}
+
 /** Crest heights of one dam in every draw, m. */
 function drawHeights(inp: DamDrawInput, det: DeterministicDam, u: UncertaintyParams, sigmaLn: number, defaultHeightM: number, maxHeightM: number, out: Float64Array): void {
   const H = inp.heightM;
@@ -346,10 +387,8 @@ function defaultRecallGroups(dams: readonly DeterministicDam[]): { groupOf: Int3
 }
 
 /**
- * Per draw, the water surface of ponds that can share cells: each cell takes
- * the highest level among the ponds counting in the draw, its water belongs
- * to the pond that sets it (ties: the lower row), as in ponds/combine.ts.
- * Draws equal to the deterministic run take the deterministic figures.
+ * Per draw, the water surface of a cascade (cascade.ts). Draws equal to the
+ * deterministic run take the deterministic figures.
  */
 function combineClusterDraws(
   cluster: OverlapCluster,
@@ -361,76 +400,43 @@ function combineClusterDraws(
   termsAtDet: (d: number, k: number) => boolean,
   out: { area: Float64Array; volume: Float64Array; maxDepth: Float64Array; fromDeterministic: Uint8Array },
 ): void {
-  const { area, volume, maxDepth, fromDeterministic } = out;
   const members = cluster.members;
-  const cells = cluster.zM.length;
-  const best = new Float64Array(cells).fill(-Infinity);
-  const owner = new Int32Array(cells).fill(-1);
-  const h = new Float64Array(members.length);
-  const n = new Int32Array(members.length);
+  const M = members.length;
+  const scratch = createCascadeScratch(cluster);
+  const draw: CascadeDraw = {
+    levelM: new Float64Array(M),
+    included: new Uint8Array(M),
+    areaM2: new Float64Array(M),
+    volumeM3: new Float64Array(M),
+    maxDepthM: new Float64Array(M),
+  };
   for (let k = 0; k < N; k++) {
     let deterministic = true;
-    for (let p = 0; p < members.length; p++) {
+    for (let p = 0; p < M; p++) {
       const d = members[p]!;
-      const inp = inputs[d]!;
+      const fill = inputs[d]!.fill;
       const det = dams[d]!;
       const inc = included[d * N + k] === 1;
-      const hp = Math.min(levels[d * N + k]!, inp.fill.topLevelM);
-      if (inc !== det.in_totals || (inc && (hp !== inp.fill.waterLevelM || !termsAtDet(d, k)))) {
-        deterministic = false;
-        break;
-      }
+      draw.levelM[p] = levels[d * N + k]!;
+      draw.included[p] = inc ? 1 : 0;
+      if (inc !== det.in_totals || (inc && (Math.min(draw.levelM[p]!, fill.topLevelM) !== fill.waterLevelM || !termsAtDet(d, k)))) deterministic = false;
     }
     if (deterministic) {
       for (const d of members) {
         const det = dams[d]!;
-        area[d * N + k] = det.area_m2;
-        volume[d * N + k] = det.volume_m3;
-        maxDepth[d * N + k] = det.max_depth_m;
-        fromDeterministic[d * N + k] = 1;
+        out.area[d * N + k] = det.area_m2;
+        out.volume[d * N + k] = det.volume_m3;
+        out.maxDepth[d * N + k] = det.max_depth_m;
+        out.fromDeterministic[d * N + k] = 1;
       }
       continue;
     }
-    // Pass 1: highest level and its owner per cell.
-    for (let p = 0; p < members.length; p++) {
+    combineCascade(cluster, inputs, draw, scratch);
+    for (let p = 0; p < M; p++) {
       const d = members[p]!;
-      const inp = inputs[d]!;
-      n[p] = 0;
-      if (included[d * N + k] === 0) continue;
-      const hp = Math.min(levels[d * N + k]!, inp.fill.topLevelM);
-      h[p] = hp;
-      const count = floodedCount(inp.fill, hp);
-      n[p] = count;
-      const local = inp.localCells!;
-      for (let e = 0; e < count; e++) {
-        const c = local[e]!;
-        if (hp > best[c]!) {
-          best[c] = hp;
-          owner[c] = p;
-        }
-      }
-    }
-    // Pass 2: each pond sums the cells it owns, and resets them for the next draw.
-    for (let p = 0; p < members.length; p++) {
-      const d = members[p]!;
-      const local = inputs[d]!.localCells!;
-      const hp = h[p]!;
-      let a = 0;
-      let v = 0;
-      let deepest = 0;
-      for (let e = 0; e < n[p]!; e++) {
-        const c = local[e]!;
-        if (owner[c] !== p) continue;
-        const depth = hp - cluster.zM[c]!;
-        a += cluster.areaM2[c]!;
-        v += cluster.areaM2[c]! * depth;
-        if (depth > deepest) deepest = depth;
-        owner[c] = -1;
-        best[c] = -Infinity;
-      }
-      area[d * N + k] = a;
-      volume[d * N + k] = v;
-      maxDepth[d * N + k] = deepest;
+      out.area[d * N + k] = draw.areaM2[p]!;
+      out.volume[d * N + k] = draw.volumeM3[p]!;
+      out.maxDepth[d * N + k] = draw.maxDepthM[p]!;
     }
   }
 }

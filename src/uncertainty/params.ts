@@ -45,6 +45,15 @@ export const DEFAULT_HEIGHT_SURVEY_SD_M = 0.1;
  */
 export const DEFAULT_UNMEASURED_HEIGHT_GSD = 1.42;
 
+/**
+ * Geometric standard deviation of the power-law exponent p of the water
+ * below a lidar water surface (lognormal around the run's p, held within
+ * the model's range 0.5–3): 1.5, a placeholder project choice. Karran et
+ * al. (2017) fitted p per beaver pond; their spread should replace this
+ * number (not restated here; not checked). 1 turns the source off.
+ */
+export const DEFAULT_POWER_P_GSD = 1.5;
+
 /** DEM quality level assumed when neither `--dem-rmse` nor `--dem-quality` is given. */
 export const DEFAULT_DEM_QUALITY: DemQualityLevel = 'QL2';
 
@@ -96,6 +105,8 @@ export interface UncertaintyParams {
   demErrorRangeM: number;
   /** Include each candidate with probability equal to its confidence (else the --min-confidence rule). */
   candidates: boolean;
+  /** Geometric standard deviation (≥ 1) of the power-law p below lidar water surfaces; 1: off. */
+  powerPGsd: number;
   /** Inventory recall (share of real dams the inventory holds, 0–1), or null when off. */
   recall: number | null;
   /** Standard deviation of the recall. */
@@ -115,6 +126,7 @@ export function defaultUncertaintyParams(): UncertaintyParams {
     demRmseFrom: DEFAULT_DEM_QUALITY,
     demErrorRangeM: DEFAULT_DEM_ERROR_RANGE_M,
     candidates: true,
+    powerPGsd: DEFAULT_POWER_P_GSD,
     recall: null,
     recallSd: DEFAULT_RECALL_SD,
   };
@@ -122,5 +134,5 @@ export function defaultUncertaintyParams(): UncertaintyParams {
 
 /** Every source switched off: each draw equals the deterministic estimate (a check, and a baseline). */
 export function zeroVarianceParams(base: UncertaintyParams): UncertaintyParams {
-  return { ...base, heightError: false, demError: false, candidates: false, recall: null };
+  return { ...base, heightError: false, demError: false, candidates: false, powerPGsd: 1, recall: null };
 }

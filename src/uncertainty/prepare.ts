@@ -8,7 +8,11 @@
  * Overlap is found once from the fills up to their tops: two ponds that
  * share no cell at their highest drawn levels never share one in any draw,
  * so their volumes simply add. Only ponds that do share cells (cascades)
- * are combined per draw.
+ * are combined per draw, and only on the cells both flood in that draw:
+ * for every pair of overlapping ponds their common cells are listed twice,
+ * sorted by each pond's join level, so a draw walks the shorter of the two
+ * prefixes below the ponds' levels (usually the few cells where the
+ * downstream pond's backwater reaches into the upstream one).
  */
 import type { Grid } from '../grid/grid.js';
 import type { DamInput } from '../inventory.js';
@@ -38,17 +42,54 @@ export interface DamDrawInput {
   prefixMinZ: Float32Array;
   /** Index into DrawInputs.clusters, or -1 when the pond overlaps no other in any draw. */
   cluster: number;
-  /** Cluster members only: the cluster-local cell of each fill entry. */
-  localCells: Int32Array | null;
+  /** Cluster members only: the cluster's shared-cell index of each fill entry (−1: no other pond reaches it), its ground (m), and the entries' positions sorted by ground. */
+  shares: { sharedIndex: Int32Array; zM: Float32Array; byGround: Int32Array } | null;
 }
 
-/** Ponds that share cells in some draw, with the ground and area of their cells. */
+/** The cells two ponds of a cluster have in common, sorted by one pond's join level. */
+export interface PairList {
+  /** That pond's join level of each common cell, ascending, m. */
+  join: Float64Array;
+  /** The other pond's join level of the same cell, m. */
+  other: Float64Array;
+  /** The cell's shared-cell index in the cluster. */
+  cell: Int32Array;
+  /** Over entries 0..j: highest `other` (m), Σ area (m²), Σ area × ground (m³), lowest ground (m). */
+  maxOther: Float64Array;
+  cumAreaM2: Float64Array;
+  cumAreaZ: Float64Array;
+  minZ: Float64Array;
+}
+
+/**
+ * Two overlapping ponds (members a < b of a cluster) and their common
+ * cells, split into cells only these two reach (`two`) and cells a third
+ * member reaches too (`multi`), each sorted by a's and by b's join level.
+ */
+export interface PairOverlap {
+  a: number;
+  b: number;
+  twoByA: PairList;
+  twoByB: PairList;
+  multiByA: PairList;
+  multiByB: PairList;
+}
+
+/** Ponds that share cells in some draw, with the ground and area of the cells they share. */
 export interface OverlapCluster {
   /** Dam rows, ascending (the combine's order: ties go to the lower row). */
   members: number[];
-  /** Ground elevation and area of each cluster-local cell, m and m². */
+  /** Ground elevation and area of each shared cell, m and m². */
   zM: Float64Array;
   areaM2: Float64Array;
+  /** Members whose fills reach each shared cell (2, or more: held at 255). */
+  reach: Uint8Array;
+  /** Shared cell c is reached by members cellMember[cellStart[c] .. cellStart[c + 1]) (ascending) at join levels cellJoin (m). */
+  cellStart: Int32Array;
+  cellMember: Int32Array;
+  cellJoin: Float64Array;
+  /** Every pair of members with common cells. */
+  pairs: PairOverlap[];
 }
 
 /** Everything the draws need, in dam-row order (null for dams not estimated). */
@@ -161,7 +202,7 @@ function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boole
     support,
     prefixMinZ,
     cluster: -1,
-    localCells: null,
+    shares: null,
   };
 }
 
@@ -241,44 +282,168 @@ function overlapGroups(grid: Grid, eligible: GroupMember[]): GroupMember[][] {
   return [...byRoot.values()].filter((g) => g.length > 1).map((g) => g.sort((a, b) => a.index - b.index));
 }
 
-/** Cluster-local cell numbering, ground and areas for a set of overlapping ponds. */
+/** Shared cells of a set of overlapping ponds, each member's map to them, and the pairs' common cells. */
 function buildCluster(grid: Grid, group: GroupMember[], dams: (DamDrawInput | null)[], clusterIndex: number): OverlapCluster {
   const { width, z, cellAreaM2 } = grid;
-  const box = { c0: Infinity, c1: -Infinity, r0: Infinity, r1: -Infinity };
-  for (const m of group) {
-    const b = fillBox(m.fill!, width);
-    box.c0 = Math.min(box.c0, b.c0);
-    box.c1 = Math.max(box.c1, b.c1);
-    box.r0 = Math.min(box.r0, b.r0);
-    box.r1 = Math.max(box.r1, b.r1);
-  }
-  const w = box.c1 - box.c0 + 1;
-  const local = new Int32Array(w * (box.r1 - box.r0 + 1)).fill(-1);
+  const M = group.length;
+  // Cells reached by two or more members: sort every member's cells and keep the repeated ones.
   let total = 0;
   for (const m of group) total += m.fill!.order.length;
-  const zs = new Float64Array(total);
-  const areas = new Float64Array(total);
-  let count = 0;
+  const all = new Int32Array(total);
+  let at = 0;
   for (const m of group) {
+    all.set(m.fill!.order, at);
+    at += m.fill!.order.length;
+  }
+  all.sort();
+  const repeated = new Int32Array(total >> 1);
+  let shared = 0;
+  for (let k = 1; k < total; k++) {
+    if (all[k] === all[k - 1] && (shared === 0 || repeated[shared - 1] !== all[k])) repeated[shared++] = all[k]!;
+  }
+  const sharedCells = repeated.slice(0, shared);
+  const zM = new Float64Array(shared);
+  const areaM2 = new Float64Array(shared);
+  for (let c = 0; c < shared; c++) {
+    const i = sharedCells[c]!;
+    zM[c] = z[i]!;
+    areaM2[c] = cellAreaM2[Math.floor(i / width)]!;
+  }
+
+  // Each member's shared entries; then, per shared cell, the members reaching it with their join levels.
+  const perCell = new Int32Array(shared + 1);
+  group.forEach((m) => {
     const order = m.fill!.order;
-    const cells = new Int32Array(order.length);
+    const sharedIndex = new Int32Array(order.length);
+    const zAt = new Float32Array(order.length);
+    const byGround = new Int32Array(order.length);
     for (let k = 0; k < order.length; k++) {
-      const i = order[k]!;
-      const col = i % width;
-      const row = (i - col) / width;
-      const b = (row - box.r0) * w + (col - box.c0);
-      let c = local[b]!;
-      if (c < 0) {
-        c = count++;
-        local[b] = c;
-        zs[c] = z[i]!;
-        areas[c] = cellAreaM2[row]!;
-      }
-      cells[k] = c;
+      const c = indexOfSorted(sharedCells, order[k]!);
+      sharedIndex[k] = c;
+      zAt[k] = z[order[k]!]!;
+      byGround[k] = k;
+      if (c >= 0) perCell[c + 1]!++;
     }
+    byGround.sort((x, y) => zAt[x]! - zAt[y]! || x - y);
     const input = dams[m.index]!;
     input.cluster = clusterIndex;
-    input.localCells = cells;
+    input.shares = { sharedIndex, zM: zAt, byGround };
+  });
+  for (let c = 0; c < shared; c++) perCell[c + 1]! += perCell[c]!;
+  const events = perCell[shared]!;
+  const evMember = new Int32Array(events);
+  const evJoin = new Float64Array(events);
+  const next = perCell.slice(0, shared);
+  group.forEach((m, p) => {
+    const sharedIndex = dams[m.index]!.shares!.sharedIndex;
+    const join = m.fill!.joinM;
+    for (let k = 0; k < sharedIndex.length; k++) {
+      const c = sharedIndex[k]!;
+      if (c < 0) continue;
+      const e = next[c]!++;
+      evMember[e] = p;
+      evJoin[e] = join[k]!;
+    }
+  });
+
+  // Pairs: count the common cells of each, then fill their lists.
+  const pairOf = new Map<number, number>();
+  const pairCount: number[] = [];
+  const pairMembers: [number, number][] = [];
+  for (let c = 0; c < shared; c++) {
+    for (let x = perCell[c]!; x < perCell[c + 1]!; x++) {
+      for (let y = x + 1; y < perCell[c + 1]!; y++) {
+        const key = evMember[x]! * M + evMember[y]!;
+        let id = pairOf.get(key);
+        if (id === undefined) {
+          id = pairCount.length;
+          pairOf.set(key, id);
+          pairCount.push(0);
+          pairMembers.push([evMember[x]!, evMember[y]!]);
+        }
+        pairCount[id]!++;
+      }
+    }
   }
-  return { members: group.map((m) => m.index), zM: zs.slice(0, count), areaM2: areas.slice(0, count) };
+  const raw = pairCount.map((n) => ({ joinA: new Float64Array(n), joinB: new Float64Array(n), cell: new Int32Array(n), fill: 0 }));
+  for (let c = 0; c < shared; c++) {
+    for (let x = perCell[c]!; x < perCell[c + 1]!; x++) {
+      for (let y = x + 1; y < perCell[c + 1]!; y++) {
+        const r = raw[pairOf.get(evMember[x]! * M + evMember[y]!)!]!;
+        r.joinA[r.fill] = evJoin[x]!;
+        r.joinB[r.fill] = evJoin[y]!;
+        r.cell[r.fill] = c;
+        r.fill++;
+      }
+    }
+  }
+  const reach = new Uint8Array(shared);
+  for (let c = 0; c < shared; c++) reach[c] = Math.min(255, perCell[c + 1]! - perCell[c]!);
+  const shares = { zM, areaM2, reach };
+  const pairs: PairOverlap[] = raw.map((r, id) => ({
+    a: pairMembers[id]![0],
+    b: pairMembers[id]![1],
+    twoByA: sortedList(r.joinA, r.joinB, r.cell, shares, false),
+    twoByB: sortedList(r.joinB, r.joinA, r.cell, shares, false),
+    multiByA: sortedList(r.joinA, r.joinB, r.cell, shares, true),
+    multiByB: sortedList(r.joinB, r.joinA, r.cell, shares, true),
+  }));
+  return { members: group.map((m) => m.index), zM, areaM2, reach, cellStart: perCell, cellMember: evMember, cellJoin: evJoin, pairs };
+}
+
+/** Common cells (those a third member reaches when `multi`, else the others) sorted by `join` ascending (ties by cell), with running figures. */
+function sortedList(
+  join: Float64Array,
+  other: Float64Array,
+  cell: Int32Array,
+  shared: { zM: Float64Array; areaM2: Float64Array; reach: Uint8Array },
+  multi: boolean,
+): PairList {
+  let n = 0;
+  for (let k = 0; k < cell.length; k++) if (shared.reach[cell[k]!] !== 2 === multi) n++;
+  const idx = new Uint32Array(n);
+  n = 0;
+  for (let k = 0; k < cell.length; k++) if (shared.reach[cell[k]!] !== 2 === multi) idx[n++] = k;
+  idx.sort((x, y) => join[x]! - join[y]! || cell[x]! - cell[y]!);
+  const out: PairList = {
+    join: new Float64Array(n),
+    other: new Float64Array(n),
+    cell: new Int32Array(n),
+    maxOther: new Float64Array(n),
+    cumAreaM2: new Float64Array(n),
+    cumAreaZ: new Float64Array(n),
+    minZ: new Float64Array(n),
+  };
+  let maxOther = -Infinity;
+  let sumA = 0;
+  let sumAZ = 0;
+  let low = Infinity;
+  for (let k = 0; k < n; k++) {
+    const j = idx[k]!;
+    const c = cell[j]!;
+    out.join[k] = join[j]!;
+    out.other[k] = other[j]!;
+    out.cell[k] = c;
+    if (other[j]! > maxOther) maxOther = other[j]!;
+    sumA += shared.areaM2[c]!;
+    sumAZ += shared.areaM2[c]! * shared.zM[c]!;
+    if (shared.zM[c]! < low) low = shared.zM[c]!;
+    out.maxOther[k] = maxOther;
+    out.cumAreaM2[k] = sumA;
+    out.cumAreaZ[k] = sumAZ;
+    out.minZ[k] = low;
+  }
+  return out;
+}
+
+/** Position of `value` in ascending `sorted`, or −1. */
+function indexOfSorted(sorted: Int32Array, value: number): number {
+  let lo = 0;
+  let hi = sorted.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (sorted[mid]! < value) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo < sorted.length && sorted[lo] === value ? lo : -1;
 }
