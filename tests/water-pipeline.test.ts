@@ -17,6 +17,8 @@ import { openWaterInputs } from '../src/io/water-inputs.js';
 import { defaultParams, runEstimate } from '../src/pipeline/run.js';
 import type { Summary } from '../src/pipeline/summary.js';
 import { defaultWaterRunParams } from '../src/pipeline/water-stage.js';
+import { generateBenchScene } from '../src/demo/index.js';
+import { writeSceneInputs } from '../src/io/write-scene.js';
 import { volumeBelow } from '../src/ponds/below-surface.js';
 import { makeDam, vValley } from './helpers/synthetic.js';
 import { flattenPond } from './helpers/water-scenes.js';
@@ -318,5 +320,21 @@ describe('bad input and odd water', () => {
     const t = sums(s);
     expect(t.volume).toBe(s.totals.storage_m3);
     expect(t.below).toBe(s.totals.storage_below_surface_m3);
+  });
+});
+
+describe('a dry landscape: no water where there is none', () => {
+  it('finds no water surface behind any of 30 dams on a seeded 2 km × 2 km landscape with lidar noise', async () => {
+    const scene = generateBenchScene({ seed: 3, width: 2000, height: 2000, damCount: 30 });
+    expect(scene.facts.lidarRmseM).toBeGreaterThan(0);
+    const inputs = await writeSceneInputs(join(dir, 'landscape'), scene);
+    const params = defaultParams();
+    params.uncertainty = undefined;
+    await runEstimate({ demPaths: [inputs.demPath], damsPath: inputs.damsPath, outDir: join(dir, 'landscape-out'), params });
+    const s = JSON.parse(await readFile(join(dir, 'landscape-out', 'summary.json'), 'utf8')) as Summary;
+    expect(s.totals.dams_estimated).toBeGreaterThan(20);
+    expect(s.totals.dams_with_water_surface).toBe(0);
+    expect(s.totals.storage_below_surface_m3).toBe(0);
+    expect(s.totals.storage_above_surface_m3).toBe(s.totals.storage_m3);
   });
 });

@@ -31,6 +31,7 @@ import { BELOW_MODELS, POWER_P_MEDIAN, areaAtDepth, volumeBelow, type BelowModel
 import { DEFAULT_RECONSTRUCT_PARAMS, reconstructBed, type ReconstructParams } from '../ponds/bed-reconstruct.js';
 import type { CrestSetup } from '../ponds/crest.js';
 import type { PondFill } from '../ponds/fill.js';
+import { floodedCount } from '../ponds/stage-storage.js';
 import {
   DEFAULT_WATER_PARAMS,
   createWaterScratch,
@@ -88,6 +89,7 @@ export function waterParameters(p: WaterRunParams): Record<string, number | stri
     water_tolerance_k: p.water.toleranceK,
     water_tolerance_m: waterToleranceM(p.water),
     water_min_area_m2: p.water.minAreaM2,
+    water_min_noisy_cells: p.water.minNoisyCells,
     water_min_depth_m: p.water.minDepthM,
     below_model: p.belowModel,
     power_p: p.powerP,
@@ -152,6 +154,28 @@ interface Found {
 export function bedAtDam(setup: CrestSetup): number {
   if (setup.demVisible && setup.heightSource === 'measured') return Math.min(setup.bedElevM, setup.crestLowM - setup.heightM);
   return setup.bedElevM;
+}
+
+/**
+ * Fewest cells, and share of the pond at the water level, whose ground
+ * stands more than 3σ below the level before a found flat is taken for dry
+ * ground (noise puts 0.13 % of a water surface's cells there).
+ */
+const GROUND_BELOW_CELLS = 5;
+const GROUND_BELOW_SHARE = 0.01;
+
+/**
+ * True when the dam's own pond at `levelM` (its fill, on the DEM as read)
+ * holds ground clearly below that level: a channel running under a dry
+ * floodplain flat. Over water the DEM is the surface, and only noise lies
+ * below it.
+ */
+function groundBelow(grid: Grid, fill: PondFill, levelM: number, sigmaM: number): boolean {
+  const n = floodedCount(fill, levelM);
+  const lowM = levelM - 3 * sigmaM;
+  let low = 0;
+  for (let k = 0; k < n; k++) if (grid.z[fill.order[k]!]! < lowM) low++;
+  return low > Math.max(GROUND_BELOW_CELLS, GROUND_BELOW_SHARE * n);
 }
 
 /** The power-law part of a pond's water below the surface: the area it covers, the depth at the dam, p. */
@@ -232,13 +256,19 @@ export class WaterStage {
     const candidates: { member: WaterMember; surface: WaterSurface; order: number }[] = [];
     members.forEach((m, order) => {
       const { setup, result } = m;
-      if (!setup || !result.in_totals || result.status === 'proposed' || !m.box) return;
+      if (!setup || !setup.holdsWater || !result.in_totals || result.status === 'proposed' || !m.box) return;
       const reach = { col0: m.box.col0 - box.col0, row0: m.box.row0 - box.row0, col1: m.box.col1 - box.col0, row1: m.box.row1 - box.row0 };
       const outcome: WaterOutcome = win.maskLabels
         ? waterFromMask(grid, setup, win.maskLabels, this.params.water, reach, scratch)
         : detectWaterSurface(grid, setup, this.params.water, reach, scratch);
-      result.water_surface_check = outcome.surface ? 'found' : outcome.reason;
-      if (outcome.surface) candidates.push({ member: m, surface: outcome.surface, order });
+      let surface = outcome.surface;
+      let check: string = outcome.surface ? 'found' : outcome.reason;
+      if (surface && surface.source === 'detected' && !surface.interpolated && m.fill && groundBelow(grid, m.fill, surface.levelM, this.params.water.rmseZM)) {
+        surface = null;
+        check = 'ground-below';
+      }
+      result.water_surface_check = check;
+      if (surface) candidates.push({ member: m, surface, order });
     });
     if (candidates.length === 0) return false;
 
