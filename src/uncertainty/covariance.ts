@@ -17,12 +17,16 @@
  *
  * For a real pond shape the variance of ē and its covariance with other
  * points and ponds are double sums over the pond's cells, computed here on
- * blocks: the pond's cells are binned into squares of about L/6 (at most
- * MAX_BLOCKS per pond), each block stands at its area-weighted centroid with
- * its water area as weight, and a block's covariance with itself is the
- * Rolstad average over a disc of the block's area. Positions are in DEM
- * cells with the dam's own cell size in metres, so geographic DEMs work
- * (distances between points further apart than the range do not matter).
+ * blocks: the pond's cells are binned into squares of about L/4 (at most
+ * MAX_BLOCKS per pond, else larger), each block stands at its area-weighted
+ * centroid with its water area as weight, and a block's covariance with
+ * itself is the mean covariance of two random points in a square of its
+ * area (blockSelfFactor). Blocks are
+ * kept sorted by column, so each sum only visits the blocks within the
+ * range (the covariance is zero beyond it): the cost grows with the pond's
+ * area, not its square. Positions are in DEM cells with the dam's own cell
+ * size in metres, so geographic DEMs work (distances between points further
+ * apart than the range do not matter).
  */
 
 /** Spherical covariance at distance hM (m) for sill σ² (m²) and range L (m). */
@@ -50,8 +54,28 @@ export function areaAverageFactor(areaM2: number, rangeM: number): number {
   return 1 - u + (u * u * u) / 5;
 }
 
-/** Most blocks a pond is represented by (the double sums cost MAX_BLOCKS² per pond). */
-export const MAX_BLOCKS = 400;
+/**
+ * Moments of the distance between two random points of the unit square:
+ * E[d] = (2 + √2 + 5·ln(1 + √2))/15 (a known closed form) and E[d³],
+ * integrated numerically from the distance's density (derived here).
+ */
+const UNIT_SQUARE_MEAN_D = 0.5214054331647207;
+const UNIT_SQUARE_MEAN_D3 = 0.2407165518464;
+
+/**
+ * Mean covariance / σ² of two random points in a square block of area
+ * `areaM2` under the spherical model of range L: 1 − 1.5·E[d]/L +
+ * 0.5·E[d³]/L³ while the block's diagonal is within the range; beyond, the
+ * Rolstad average (a block large against the range).
+ */
+export function blockSelfFactor(areaM2: number, rangeM: number): number {
+  const s = Math.sqrt(areaM2) / rangeM;
+  if (s * Math.SQRT2 > 1) return areaAverageFactor(areaM2, rangeM);
+  return 1 - 1.5 * s * UNIT_SQUARE_MEAN_D + 0.5 * s * s * s * UNIT_SQUARE_MEAN_D3;
+}
+
+/** Most blocks a pond is represented by (beyond, the blocks grow). */
+export const MAX_BLOCKS = 20000;
 
 /**
  * Where a dam's DEM error acts: the reference point whose error shifts the
@@ -65,7 +89,7 @@ export interface ErrorSupport {
   /** Cell size at the dam, metres. */
   cellWM: number;
   cellHM: number;
-  /** Block centroids (cell positions) and weights (water area, m²). */
+  /** Block centroids (cell positions, sorted by column) and weights (water area, m²). */
   blockCol: Float64Array;
   blockRow: Float64Array;
   blockAreaM2: Float64Array;
@@ -139,19 +163,29 @@ export function buildSupport(args: {
       blockM *= 2;
       continue;
     }
+    const unsortedCol = new Float64Array(used);
+    const idx = new Uint32Array(used);
+    const nonEmpty = new Int32Array(used);
+    let n = 0;
+    for (let b = 0; b < w.length; b++) {
+      if (!(w[b]! > 0)) continue;
+      unsortedCol[n] = wc[b]! / w[b]! + colOffset;
+      nonEmpty[n] = b;
+      idx[n] = n;
+      n++;
+    }
+    idx.sort((x, y) => unsortedCol[x]! - unsortedCol[y]! || x - y);
     const blockCol = new Float64Array(used);
     const blockRow = new Float64Array(used);
     const blockAreaM2 = new Float64Array(used);
-    let n = 0;
     let areaM2 = 0;
-    for (let b = 0; b < w.length; b++) {
+    for (let k = 0; k < used; k++) {
+      const b = nonEmpty[idx[k]!]!;
       const wb = w[b]!;
-      if (!(wb > 0)) continue;
-      blockCol[n] = wc[b]! / wb + colOffset;
-      blockRow[n] = wr[b]! / wb + rowOffset;
-      blockAreaM2[n] = wb;
+      blockCol[k] = unsortedCol[idx[k]!]!;
+      blockRow[k] = wr[b]! / wb + rowOffset;
+      blockAreaM2[k] = wb;
       areaM2 += wb;
-      n++;
     }
     return {
       refCol,
@@ -200,10 +234,23 @@ export function supportCovariance(a: ErrorSupport, b: ErrorSupport, sillM2: numb
   return [rr, rp, pr, pp];
 }
 
-/** Mean covariance between a point of support `p` and the blocks of `q`. */
+/** First block of `q` whose column is at least `col` (blocks are sorted by column). */
+function firstBlockFrom(q: ErrorSupport, col: number): number {
+  let lo = 0;
+  let hi = q.blockCol.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (q.blockCol[mid]! < col) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+/** Mean covariance between a point of support `p` and the blocks of `q` (only blocks within the range add). */
 function pointToPond(p: ErrorSupport, col: number, row: number, q: ErrorSupport, sillM2: number, rangeM: number): number {
+  const reachCols = rangeM / Math.min(p.cellWM, q.cellWM);
   let s = 0;
-  for (let j = 0; j < q.blockAreaM2.length; j++) {
+  for (let j = firstBlockFrom(q, col - reachCols); j < q.blockCol.length && q.blockCol[j]! <= col + reachCols; j++) {
     s += q.blockAreaM2[j]! * sphericalCovariance(distM(p, col, row, q, q.blockCol[j]!, q.blockRow[j]!), sillM2, rangeM);
   }
   return s / q.areaM2;
@@ -211,14 +258,15 @@ function pointToPond(p: ErrorSupport, col: number, row: number, q: ErrorSupport,
 
 /** Mean covariance between the blocks of two ponds (a block with itself: the Rolstad disc average). */
 function pondToPond(a: ErrorSupport, b: ErrorSupport, sillM2: number, rangeM: number, same: boolean): number {
+  const reachCols = rangeM / Math.min(a.cellWM, b.cellWM);
   let s = 0;
   for (let i = 0; i < a.blockAreaM2.length; i++) {
     const wi = a.blockAreaM2[i]!;
     const ci = a.blockCol[i]!;
     const ri = a.blockRow[i]!;
     let si = 0;
-    for (let j = 0; j < b.blockAreaM2.length; j++) {
-      const c = same && i === j ? sillM2 * areaAverageFactor(wi, rangeM) : sphericalCovariance(distM(a, ci, ri, b, b.blockCol[j]!, b.blockRow[j]!), sillM2, rangeM);
+    for (let j = firstBlockFrom(b, ci - reachCols); j < b.blockCol.length && b.blockCol[j]! <= ci + reachCols; j++) {
+      const c = same && i === j ? sillM2 * blockSelfFactor(wi, rangeM) : sphericalCovariance(distM(a, ci, ri, b, b.blockCol[j]!, b.blockRow[j]!), sillM2, rangeM);
       si += b.blockAreaM2[j]! * c;
     }
     s += wi * si;

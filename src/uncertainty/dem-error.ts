@@ -20,12 +20,20 @@
  * which pondage does not take as input; there a bias b changes the volume
  * by −A·b.
  *
+ * The error's variation within the pond, e − ē, does not average out at the
+ * shore: a cell's water max(0, d − e′) gains on average where it is shallow
+ * (Jensen's inequality). Summed over cells, the expected pond is the pond
+ * with its level smeared by N(0, σ_w²), σ_w² = σ² − Var(ē) the mean
+ * within-pond variance: the draws read the fill at five Gauss–Hermite
+ * levels around the shifted one (Abramowitz & Stegun 1964, 25.4.46) instead
+ * of one.
+ *
  * Approximations (tested against full re-flooding of perturbed DEMs): the
- * pond whose mean error is taken is the deterministic one; within-pond
- * variation of the error moves shoreline cells only at second order; the
- * escape level (spill) is taken from the DEM as it is; for a DEM-visible dam
- * with a measured height, the bed (the downstream toe, within the 3 m probe)
- * is taken to share the bed cell's error.
+ * pond whose mean error is taken is the deterministic one; the smearing is
+ * the expected one, not drawn; the escape level (spill) is taken from the
+ * DEM as it is; for a DEM-visible dam with a measured height, the bed (the
+ * downstream toe, within the 3 m probe) is taken to share the bed cell's
+ * error.
  */
 import { normal, createRng, deriveSeed } from './random.js';
 import { supportCovariance, supportGapM, type ErrorSupport } from './covariance.js';
@@ -34,6 +42,8 @@ import { supportCovariance, supportGapM, type ErrorSupport } from './covariance.
 export interface DemErrorDraws {
   refErrorM: Float64Array;
   meanErrorM: Float64Array;
+  /** Per dam: the error's standard deviation within its pond, σ_w = √(σ² − Var(ē)), m (0 without a support). */
+  withinSdM: Float64Array;
   /** Dams whose errors are drawn jointly (connected within the range), for the record. */
   components: number;
   largestComponent: number;
@@ -59,11 +69,12 @@ export function drawDemErrors(args: {
   const n = supports.length;
   const refErrorM = new Float64Array(n * draws);
   const meanErrorM = new Float64Array(n * draws);
+  const withinSdM = new Float64Array(n);
   const sill = sigmaM * sigmaM;
   let components = 0;
   let largest = 0;
   let clipped = 0;
-  if (!(sill > 0)) return { refErrorM, meanErrorM, components, largestComponent: largest, clippedPivots: clipped };
+  if (!(sill > 0)) return { refErrorM, meanErrorM, withinSdM, components, largestComponent: largest, clippedPivots: clipped };
 
   const members = connectedWithin(supports, rangeM);
   for (const comp of members) {
@@ -83,6 +94,7 @@ export function drawDemErrors(args: {
         set2(cov, m, 2 * p, 2 * q + 1, rp);
         set2(cov, m, 2 * p + 1, 2 * q, pr);
         set2(cov, m, 2 * p + 1, 2 * q + 1, pp);
+        if (p === q && a.areaM2 > 0) withinSdM[comp[p]!] = Math.sqrt(Math.max(0, sill - pp));
       }
     }
     const chol = cholesky(cov, m);
@@ -109,8 +121,14 @@ export function drawDemErrors(args: {
       }
     }
   }
-  return { refErrorM, meanErrorM, components, largestComponent: largest, clippedPivots: clipped };
+  return { refErrorM, meanErrorM, withinSdM, components, largestComponent: largest, clippedPivots: clipped };
 }
+
+/** Gauss–Hermite nodes and weights / √π for E[f(u)], u ~ N(0, s²) ≈ Σ wⱼ·f(√2·s·xⱼ) (five points; Abramowitz & Stegun 1964, 25.4.46). */
+export const HERMITE_5: { x: readonly number[]; w: readonly number[] } = {
+  x: [0, 0.958572464613819, -0.958572464613819, 2.020182870456086, -2.020182870456086],
+  w: [0.945308720482942 / Math.sqrt(Math.PI), 0.393619323152241 / Math.sqrt(Math.PI), 0.393619323152241 / Math.sqrt(Math.PI), 0.0199532420590459 / Math.sqrt(Math.PI), 0.0199532420590459 / Math.sqrt(Math.PI)],
+};
 
 function set2(a: Float64Array, m: number, r: number, c: number, v: number): void {
   a[r * m + c] = v;

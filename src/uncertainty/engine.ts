@@ -28,7 +28,7 @@ import type { DamStatus } from '../inventory.js';
 import { pondAt } from '../ponds/stage-storage.js';
 import { combineCascade, createCascadeScratch, type CascadeDraw } from './cascade.js';
 import { bandOf, percentileStandardError, tooFewDraws, type Bands } from './bands.js';
-import { drawDemErrors } from './dem-error.js';
+import { HERMITE_5, drawDemErrors } from './dem-error.js';
 import type { DrawInputs, DamDrawInput, OverlapCluster } from './prepare.js';
 import type { UncertaintyParams } from './params.js';
 import { drawMissing } from './recall.js';
@@ -226,7 +226,10 @@ export function runDraws(args: {
       const level = levels[base + k]!;
       const h = Math.min(level, fill.topLevelM);
       if (level > fill.topLevelM && fill.escapeKind === null && inp.holdsWater) floodTopHits++;
-      const own = pondAt(fill, level);
+      const plain = pondAt(fill, level);
+      const sw = dem.withinSdM[d]!;
+      // The error's variation within the pond: the expected pond over the smeared level (dem-error.ts).
+      const own = sw > 0 ? smearedPond(fill, level, sw) : plain;
       const extra = terms.length > 0 ? termSum(d, k) : 0;
       fig.standaloneArea[k] = own.areaM2;
       fig.standaloneVolume[k] = own.volumeM3 + extra;
@@ -246,7 +249,10 @@ export function runDraws(args: {
           damVolumeM3[base + k] = own.volumeM3 + extra;
           damMaxDepthM[base + k] = own.cellCount > 0 ? h - inp.prefixMinZ[own.cellCount - 1]! : 0;
         }
-      } else if (included[base + k] === 1 && fromDeterministic[base + k] === 0 && terms.length > 0) {
+      } else if (included[base + k] === 1 && fromDeterministic[base + k] === 0) {
+        // A cascade member: its share scaled by the smearing of its own pond, plus the terms.
+        if (sw > 0 && plain.volumeM3 > 0) damVolumeM3[base + k] = (damVolumeM3[base + k]! * own.volumeM3) / plain.volumeM3;
+        if (sw > 0 && plain.areaM2 > 0) damAreaM2[base + k] = (damAreaM2[base + k]! * own.areaM2) / plain.areaM2;
         damVolumeM3[base + k]! += extra;
       }
       if (included[base + k] === 1 && fromDeterministic[base + k] === 0 && damAreaM2[base + k]! > 0) {
@@ -349,6 +355,20 @@ function levelFloor(terms: readonly DamVolumeTerm[], d: number, deterministicLev
     if (surface !== undefined && surface === surface) floor = Math.max(floor, Math.min(surface + SURFACE_FLOOR_ABOVE_M, deterministicLevelM));
   }
   return floor;
+}
+
+/** The pond's expected area and volume when its level is smeared by N(0, s²) (five-point Gauss–Hermite). */
+function smearedPond(fill: DamDrawInput['fill'], levelM: number, s: number): { cellCount: number; areaM2: number; volumeM3: number } {
+  let area = 0;
+  let volume = 0;
+  let cells = 0;
+  for (let j = 0; j < HERMITE_5.x.length; j++) {
+    const p = pondAt(fill, levelM + Math.SQRT2 * s * HERMITE_5.x[j]!);
+    area += HERMITE_5.w[j]! * p.areaM2;
+    volume += HERMITE_5.w[j]! * p.volumeM3;
+    if (j === 0) cells = p.cellCount;
+  }
+  return { cellCount: cells, areaM2: area, volumeM3: volume };
 }
 
 /** Crest heights of one dam in every draw, m. */

@@ -188,7 +188,7 @@ function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boole
       refCell: setup.bedCell,
       cellWM: grid.cellWidthM[bedRow]!,
       cellHM: grid.cellHeightM,
-      blockM: u.demErrorRangeM / 6,
+      blockM: u.demErrorRangeM / 4,
     });
   }
   return {
