@@ -131,6 +131,18 @@ describe('fillDepressions (priority-flood)', () => {
     }
   });
 
+  it('gives the same fill on worker threads as on one thread (tiles flooded in parallel)', () => {
+    const width = 70;
+    const height = 64;
+    const z = randomDem(77, width, height, 40);
+    const grid = makeGrid({ width, height, z, transform: { x0: 0, y0: 0, dx: 1, dy: -1 } });
+    const serial = fillDepressions(grid, { tileCells: 8, threads: 1 });
+    const parallel = fillDepressions(grid, { tileCells: 8, threads: 3, minCellsForThreads: 0 });
+    expect(Array.from(parallel.filledZ)).toEqual(Array.from(serial.filledZ));
+    expect(Array.from(serial.filledZ)).toEqual(Array.from(bruteForceFill(z, width, height)));
+    expect(parallel.raisedCells).toBe(serial.raisedCells);
+  });
+
   it('fills a single pit to the lowest rim cell and never lowers a cell', () => {
     // 5 × 5 bowl: rim 10 with one notch at 7; centre 3, inner ring 5 → fills to 7.
     const z = Float32Array.from([

@@ -12,19 +12,35 @@
  * each tile is flooded from its own edge cells with labels, the labels'
  * meeting elevations form a small graph solved from the outlets, and each
  * cell ends at max(its tile fill, its label's level). A tile fits in cache,
- * where one flood front across the whole grid does not. The result is the
- * same as one global flood (tests compare with a brute-force fill and with
- * GRASS GIS r.terraflow).
+ * where one flood front across the whole grid does not, and tiles are
+ * independent, so large grids flood them on several threads. The result is
+ * the same as one global flood (tests compare with a brute-force fill and
+ * with GRASS GIS r.terraflow, on one thread and on several).
  *
  * Policy: water leaves at the grid edge and at NoData cells, so cells on the
  * edge and cells next to NoData are never raised. NoData stays NaN.
  */
+import { availableParallelism } from 'node:os';
 import type { Grid } from '../grid/grid.js';
+import { floodTiles, labelCount, planTiles } from './fill-plan.js';
 import { TileFlood } from './fill-tile.js';
+import { fillWorkerEntry, floodInThreads } from './fill-threads.js';
 import { OUTLET_LABEL, SpillGraph } from './spill-graph.js';
 
 /** Side of the square tiles the flood works on, cells (a tile's buffers stay in cache). */
 export const FILL_TILE_CELLS = 256;
+/** Grids smaller than this many cells are filled on one thread (starting workers costs more). */
+export const FILL_THREAD_MIN_CELLS = 4_000_000;
+
+/** Options of {@link fillDepressions}. */
+export interface FillOptions {
+  /** Tile side, cells (tests use small tiles to exercise the seams). Default {@link FILL_TILE_CELLS}. */
+  tileCells?: number;
+  /** Threads to flood tiles on, this one included. Default: the machine's available parallelism, at most 8. */
+  threads?: number;
+  /** Smallest grid, in cells, worth more than one thread. Default {@link FILL_THREAD_MIN_CELLS}. */
+  minCellsForThreads?: number;
+}
 
 /** Result of {@link fillDepressions}. */
 export interface FillResult {
@@ -36,29 +52,27 @@ export interface FillResult {
 
 /**
  * Fills every depression of `grid.z` (metres) to its spill elevation; the
- * input is not changed. `tileCells` sets the tile side (tests use small
- * tiles to exercise the tile seams).
+ * input is not changed. Large grids are flooded on several threads (same
+ * result, see fill-threads.ts).
  */
-export function fillDepressions(
-  grid: Pick<Grid, 'width' | 'height' | 'z'>,
-  options: { tileCells?: number } = {},
-): FillResult {
+export function fillDepressions(grid: Pick<Grid, 'width' | 'height' | 'z'>, options: FillOptions = {}): FillResult {
   const { width, height, z } = grid;
   const n = width * height;
-  const tile = Math.max(3, Math.floor(options.tileCells ?? FILL_TILE_CELLS));
-  const filled = new Float32Array(n);
-  const label = new Int32Array(n);
+  const plan = planTiles(width, height, Math.floor(options.tileCells ?? FILL_TILE_CELLS));
+  const threads = Math.max(1, Math.min(options.threads ?? Math.min(8, availableParallelism()), plan.tileRows));
+  const entry = threads > 1 && n >= (options.minCellsForThreads ?? FILL_THREAD_MIN_CELLS) ? fillWorkerEntry() : null;
   const graph = new SpillGraph();
-  const flood = new TileFlood(Math.min(tile, height), Math.min(tile, width));
-  let nextLabel = OUTLET_LABEL + 1;
-  for (let r0 = 0; r0 < height; r0 += tile) {
-    for (let c0 = 0; c0 < width; c0 += tile) {
-      const bounds = { r0, c0, rows: Math.min(tile, height - r0), cols: Math.min(tile, width - c0) };
-      nextLabel = flood.run(z, width, height, bounds, filled, label, nextLabel, graph);
-    }
+  let filled: Float32Array;
+  let label: Int32Array;
+  if (entry !== null) {
+    ({ filled, label } = floodInThreads(z, plan, threads, graph, entry));
+  } else {
+    filled = new Float32Array(n);
+    label = new Int32Array(n);
+    floodTiles(z, plan, 0, 1, new TileFlood(plan.tile, plan.tile), filled, label, graph);
   }
-  linkTiles(z, width, height, tile, label, graph);
-  const level = graph.solve(nextLabel);
+  linkTiles(z, width, height, plan.tile, label, graph);
+  const level = graph.solve(labelCount(plan));
   let raisedCells = 0;
   for (let i = 0; i < n; i++) {
     const l = label[i] ?? 0;

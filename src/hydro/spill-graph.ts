@@ -14,6 +14,13 @@ export const OUTLET_LABEL = 1;
 const CACHE_SHIFT = 18; // 2^(32 − 18) = 16 384 slots
 const CACHE_SIZE = 1 << (32 - CACHE_SHIFT);
 
+/** Edges as three parallel arrays: labels at both ends and the meeting elevation (m). */
+export interface SpillEdges {
+  from: Int32Array<ArrayBuffer>;
+  to: Int32Array<ArrayBuffer>;
+  weight: Float32Array<ArrayBuffer>;
+}
+
 /** Growable undirected edge list with a minimax solver. */
 export class SpillGraph {
   private from: Int32Array = new Int32Array(1024);
@@ -44,6 +51,21 @@ export class SpillGraph {
   /** Number of edges recorded. */
   get size(): number {
     return this.count;
+  }
+
+  /** Copies of the recorded edges (to send from a worker thread). */
+  exportEdges(): SpillEdges {
+    return {
+      from: this.from.slice(0, this.count),
+      to: this.to.slice(0, this.count),
+      weight: this.weight.slice(0, this.count),
+    };
+  }
+
+  /** Adds edges exported by another graph. */
+  importEdges(edges: SpillEdges): void {
+    const { from, to, weight } = edges;
+    for (let k = 0; k < from.length; k++) this.add(from[k] ?? 0, to[k] ?? 0, weight[k] ?? 0);
   }
 
   /**
