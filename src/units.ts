@@ -15,6 +15,8 @@ export const ACRE_M2 = 43560 * FOOT_M * FOOT_M; // 4046.8564224
 export const ACRE_FOOT_M3 = ACRE_M2 * FOOT_M; // 1233.48183754752
 /** Hectare in square metres. */
 export const HECTARE_M2 = 10000;
+/** Statute mile in metres: 5280 international feet (NIST SP 811). */
+export const MILE_M = 5280 * FOOT_M; // 1609.344
 
 /** Linear units a DEM or a dam file may use. */
 export type LinearUnit = 'metre' | 'us-survey-foot' | 'foot';
@@ -48,5 +50,7 @@ export const m2ToAcres = (areaM2: number): number => areaM2 / ACRE_M2;
 export const m2ToHectares = (areaM2: number): number => areaM2 / HECTARE_M2;
 /** Cubic metres to acre-feet. */
 export const m3ToAcreFeet = (volumeM3: number): number => volumeM3 / ACRE_FOOT_M3;
+/** Metres to statute miles. */
+export const mToMiles = (lengthM: number): number => lengthM / MILE_M;
 /** Metres to international feet. */
 export const mToFeet = (lengthM: number): number => lengthM / FOOT_M;

@@ -11,7 +11,10 @@
  *   ...
  *
  * - `draw` 0 … N−1; rows of draw k come together: the totals row, then one
- *   row per dam (scope `dam`, id the dam's id, in summary.json's order).
+ *   row per watershed when the run has watersheds (scope `watershed`, id the
+ *   watershed's id, in summary.json's order; its totals' figures are the
+ *   sums of its dams' figures in that draw), then one row per dam (scope
+ *   `dam`, id the dam's id, in summary.json's order).
  * - Totals rows fill the totals' figures; dam rows the dam's own water in
  *   that draw (`volume_m3`, `area_m2`: 0 when the dam does not count).
  *   Other cells are empty.
@@ -32,6 +35,8 @@ export interface DrawsTable {
   damAreaM2: Float64Array;
   /** Rows of dams to write (default every dam). */
   damRows?: readonly number[];
+  /** Watershed rows: ids and, per watershed, per-draw figures named as the first three totals (storage_m3, inundated_area_m2, dams_in_totals). */
+  watersheds?: { ids: readonly string[]; figures: readonly Record<string, Float64Array>[] };
 }
 
 /** The file's text. */
@@ -48,6 +53,13 @@ export function drawsCsv(t: DrawsTable): string {
     const head = totalNames.slice(0, 3).map((n) => String(t.totals[n]![k]!));
     const tail = totalNames.slice(3).map((n) => String(t.totals[n]![k]!));
     lines.push(`${k},total,,${head.join(',')},,${tail.length > 0 ? ',' + tail.join(',') : ''}`);
+    if (t.watersheds) {
+      t.watersheds.ids.forEach((id, w) => {
+        const f = t.watersheds!.figures[w]!;
+        const cells = totalNames.slice(0, 3).map((n) => (f[n] ? String(f[n][k]!) : ''));
+        lines.push(`${k},watershed,${csvField(id)},${cells.join(',')},,${emptyTail}`);
+      });
+    }
     for (const d of rows) {
       lines.push(`${k},dam,${ids[d]!}${emptyTotals},${String(t.damVolumeM3[d * N + k]!)},${String(t.damAreaM2[d * N + k]!)}${emptyTail}`);
     }

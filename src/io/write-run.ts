@@ -1,6 +1,7 @@
 /**
  * Writes one estimate run's files into a folder (the caller makes the folder
- * appear atomically): summary.json, dams.csv, ponds.geojson, depth.tif.
+ * appear atomically): summary.json, dams.csv, ponds.geojson, depth.tif
+ * (the influence stage's files: io/write-influence.ts).
  */
 import { writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
@@ -57,7 +58,8 @@ export const DAMS_CSV_COLUMNS = [
   'volume_above_surface_m3', 'volume_below_surface_m3', 'volume_below_surface_acre_ft', 'water_surface_elev_m',
   'water_surface_area_m2', 'freeboard_m', 'depth_at_dam_m', 'bed_source', 'water_surface_source',
   'max_depth_m', 'max_depth_ft', 'mean_depth_m', 'standalone_area_m2', 'standalone_volume_m3',
-  'standalone_volume_acre_ft', 'drowned_by', 'warnings',
+  'standalone_volume_acre_ft', 'drowned_by', 'watershed', 'riparian_area_m2', 'influence_area_m2', 'influence_area_ha',
+  'influence_area_acres', 'warnings',
 ] as const;
 
 /**
@@ -81,7 +83,9 @@ export function damsCsv(dams: readonly DamResult[]): string {
     round(d.depth_at_dam_m ?? null, 3), d.bed_source ?? null, d.water_surface_source ?? null,
     round(d.max_depth_m, 3), round(d.max_depth_m / FOOT_M, 3), round(d.mean_depth_m, 3),
     round(d.standalone_area_m2, 2), round(d.standalone_volume_m3, 3), round(m3ToAcreFeet(d.standalone_volume_m3), 6),
-    d.drowned_by, d.warnings.join(' | '),
+    d.drowned_by, d.watershed ?? null, round(d.riparian_area_m2 ?? null, 2), round(d.influence_area_m2 ?? null, 2),
+    round(d.influence_area_m2 === undefined ? null : m2ToHectares(d.influence_area_m2), 5),
+    round(d.influence_area_m2 === undefined ? null : m2ToAcres(d.influence_area_m2), 5), d.warnings.join(' | '),
     ...extraKeys.map((k) => csvValueOf(d.properties[k])),
   ]);
   // Monte Carlo bands beside each figure's column (io/band-columns.ts), when the run made draws.

@@ -94,6 +94,16 @@ export interface DamResult {
   pond_length_m?: number | null;
   /** Reconstructed bed: median valley-side slope at the shore (rise over run). */
   side_slope?: number | null;
+  /*
+   * The influence stage (pipeline/influence-stage.ts, tally/watersheds.ts).
+   * Written by estimate unless --ponds-only; optional so older runs still read.
+   */
+  /** Id of the watershed the crest location lies in (`outside` when in none). */
+  watershed?: string;
+  /** Riparian cells whose nearest pond cell is this dam's water, m² (0 when its water is not counted). */
+  riparian_area_m2?: number;
+  /** This dam's influence zone: its water (area_m2) plus riparian_area_m2, m². */
+  influence_area_m2?: number;
 }
 
 /** Where the bed under today's water came from: `none` (no water surface), a model, a bed DEM, or a bed DEM where it has data and a model elsewhere. */
@@ -117,7 +127,7 @@ export interface Totals {
 }
 
 export interface InputRecord {
-  role: 'dem' | 'dams' | 'water-mask' | 'bed-dem';
+  role: 'dem' | 'dams' | 'water-mask' | 'bed-dem' | 'watersheds' | 'valley-bottom';
   path: string;
   sha256: string;
 }
