@@ -6,7 +6,7 @@
 import type { Grid } from '../grid/grid.js';
 import { flowAccumulationM2 } from './accumulation.js';
 import { flowDirections } from './d8.js';
-import { fillDepressions } from './fill.js';
+import { fillDepressions, type FillOptions } from './fill.js';
 import { heightAboveDrainage, type HandResult } from './hand.js';
 import { flowOrder } from './order.js';
 import { streamLengthM } from './stream-length.js';
@@ -22,6 +22,8 @@ export interface TerrainOptions {
   valleyBottom?: ValleyBottomOptions;
   /** HAND from the original DEM (default, keeps real depressions) or the filled one. */
   handSurface?: 'original' | 'filled';
+  /** Tiling and threads of the depression fill; see fill.ts. */
+  fill?: FillOptions;
 }
 
 /** Everything the terrain step derives from a DEM; all rasters on `grid`, flat-indexed. */
@@ -52,7 +54,7 @@ export interface Terrain {
 
 /** Runs the whole terrain step on `grid` (elevations in metres, NaN for NoData). */
 export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrain {
-  const fill = fillDepressions(grid);
+  const fill = fillDepressions(grid, options.fill);
   const flow = flowDirections(grid, fill.filledZ);
   const order = flowOrder(flow.dir, fill.filledZ, grid.width);
   const accumulationM2 = flowAccumulationM2(grid, flow.dir, order);
