@@ -8,9 +8,11 @@ import { progressBar } from './progress.js';
 import { runTable } from './table.js';
 import { addWaterModelOptions, waterParamsFromFlags, type WaterModelFlags } from './water-options.js';
 import { addSeedOption, addUncertaintyOptions, uncertaintyFromFlags, type UncertaintyFlags } from './uncertainty-options.js';
+import { addAreaInputOptions, addInfluenceOptions, areaInputsFromFlags, influenceFromFlags, type AreaInputFlags, type InfluenceFlags } from './influence-options.js';
+import { watershedTable } from './watershed-table.js';
 
 /** Flags shared by every command that runs an estimate (estimate, demo). */
-export interface ParamFlags extends WaterModelFlags, UncertaintyFlags {
+export interface ParamFlags extends WaterModelFlags, UncertaintyFlags, InfluenceFlags {
   defaultHeight?: string;
   maxReach?: string;
   stageStep?: string;
@@ -22,7 +24,7 @@ export interface ParamFlags extends WaterModelFlags, UncertaintyFlags {
 /** Adds the estimate parameters' flags to a command; the option text is the CLI reference. */
 export function addParamOptions(cmd: Command): Command {
   const d = defaultParams();
-  return addUncertaintyOptions(addWaterModelOptions(cmd))
+  return addInfluenceOptions(addUncertaintyOptions(addWaterModelOptions(cmd)))
     .option('--default-height <length>', `crest height above the bed for dams with no measured height that do not stand out in the DEM (m, or add ft / us-ft)`, `${DEFAULT_POND_PARAMS.defaultHeightM}`)
     .option('--max-reach <length>', 'largest distance a pond may reach from its crest; ponds that reach it are flagged "edge" (m)', `${d.maxReachM}`)
     .option('--stage-step <length>', 'level step of the stage–area–storage curves (m)', `${DEFAULT_POND_PARAMS.stageStepM}`)
@@ -42,10 +44,11 @@ export function paramsFromFlags(flags: ParamFlags): EstimateParams {
   if (flags.minConfidence !== undefined) p.minConfidence = parseNumber(flags.minConfidence, '--min-confidence', { min: 0, max: 1 });
   p.water = waterParamsFromFlags(flags, p);
   p.uncertainty = uncertaintyFromFlags(flags);
+  p.influence = influenceFromFlags(flags);
   return p;
 }
 
-interface EstimateFlags extends ParamFlags {
+interface EstimateFlags extends ParamFlags, AreaInputFlags {
   dem: string[];
   dams: string;
   out: string;
@@ -70,8 +73,9 @@ export function addEstimateCommand(program: Command): void {
     .option('--water-mask <file>', "today's water as a GeoTIFF (non-zero cells) or GeoJSON polygons, on the DEM's CRS or lon/lat; replaces finding water surfaces in the DEM")
     .option('--bed-dem <file>', "DEM of the bed under today's water (before the dams, a drained year, a bathymetry survey), in the DEM's CRS; used where it has data")
     .option('-q, --quiet', 'print nothing but errors');
-  addParamOptions(addSeedOption(cmd)).action(async (flags: EstimateFlags) => {
+  addParamOptions(addSeedOption(addAreaInputOptions(cmd))).action(async (flags: EstimateFlags) => {
     const params = paramsFromFlags(flags);
+    const areas = areaInputsFromFlags(flags);
     const bar = progressBar('ponds', flags.quiet ?? false);
     try {
       const { summary } = await runEstimate({
@@ -82,6 +86,7 @@ export function addEstimateCommand(program: Command): void {
         zUnits: flags.zUnits,
         waterMaskPath: flags.waterMask,
         bedDemPath: flags.bedDem,
+        ...areas,
         outDir: flags.out,
         params,
         ...(bar.onProgress ? { progress: bar.onProgress } : {}),
@@ -89,11 +94,19 @@ export function addEstimateCommand(program: Command): void {
       bar.stop();
       if (!flags.quiet) {
         process.stdout.write(runTable(summary));
-        process.stdout.write(`\nwrote ${flags.out}/ (summary.json, dams.csv, ponds.geojson, depth.tif)\n`);
+        process.stdout.write(watershedTable(summary));
+        process.stdout.write(`\nwrote ${flags.out}/ (${writtenFiles(summary)})\n`);
         if (summary.warnings.length > 0) process.stdout.write(`${summary.warnings.length} warnings: see summary.json or the warnings column of dams.csv\n`);
       }
     } finally {
       bar.stop();
     }
   });
+}
+
+/** The main files of a run folder, for the closing line. */
+export function writtenFiles(summary: { watersheds?: unknown }): string {
+  return summary.watersheds
+    ? 'summary.json, dams.csv, watersheds.csv, ponds.geojson, influence.geojson, watersheds.geojson, streams.geojson, depth.tif, influence.tif, report.html'
+    : 'summary.json, dams.csv, ponds.geojson, depth.tif, report.html';
 }

@@ -31,6 +31,8 @@ import { ScenarioTally, type Scenarios } from './scenarios.js';
 import type { UncertaintyParams } from '../uncertainty/params.js';
 import { createDrawPrep, type DrawInputs, type DrawPrep } from '../uncertainty/prepare.js';
 import { WaterStage, effectiveWaterParams, type WaterRunParams, type WaterWindowSource } from './water-stage.js';
+import { PondWaterCollector, type PondWater } from './pond-water.js';
+import type { InfluenceRunParams } from './influence-stage.js';
 
 /** Run-level parameters beyond the pond engine's own. */
 export interface EstimateParams {
@@ -47,6 +49,8 @@ export interface EstimateParams {
   uncertainty?: UncertaintyParams;
   /** Ponds that already hold water (water-stage.ts); absent: the defaults. */
   water?: WaterRunParams;
+  /** Influence zone, valley bottom and watersheds (influence-stage.ts); absent: that stage does not run. */
+  influence?: InfluenceRunParams;
 }
 
 /** Progress of the long steps, for the CLI's bar. */
@@ -71,6 +75,8 @@ export interface EstimateResult {
   scenarios?: Scenarios;
   /** What the Monte Carlo draws need (fills, error supports, overlapping ponds); null without draws. */
   drawInputs?: DrawInputs | null;
+  /** The combined water surface's wet cells, levels and owners, for the influence stage (pond-water.ts). */
+  pondWater?: PondWater;
 }
 
 interface Working {
@@ -120,6 +126,7 @@ export async function estimatePonds(
   let cellsVisited = 0;
   const scenarioTally = new ScenarioTally(work.length);
   const prep = params.uncertainty && params.uncertainty.draws > 0 ? createDrawPrep(params.uncertainty, params.pond, work.length) : null;
+  const pondWater = new PondWaterCollector();
   for (const group of groups) {
     const { box } = group;
     const grid = await dem.readWindow(box.col0, box.row0, box.col1 - box.col0, box.row1 - box.row0);
@@ -136,7 +143,7 @@ export async function estimatePonds(
     if (water.detect(grid, members, box, waterWindow, warnings)) {
       for (const w of members) if (water.affects(w.fill, grid.width)) cellsVisited += refillOne(grid, w, box, scratch, params, prep);
     }
-    combineGroup(grid, group.members.map((k) => work[k]!), box, depth!, outlines, work);
+    combineGroup(grid, group.members.map((k) => work[k]!), box, depth!, outlines, work, pondWater);
     water.below(grid, members, box, waterWindow, depth, warnings);
     scenarioTally.addGroup(grid, group.members.map((k) => ({ index: k, result: work[k]!.result, fill: work[k]!.fill })));
     prep?.addGroup(grid, group.members.map((k) => ({ index: k, dam: work[k]!.dam, inTotals: work[k]!.result.in_totals, setup: work[k]!.setup, fill: work[k]!.fill })));
@@ -145,7 +152,7 @@ export async function estimatePonds(
   warnings.push(...water.finish());
   const results = work.map((w) => w.result);
   const totals = totalsOf(results);
-  return { dams: results, totals, depth, outlines, warnings, cellsVisited, scenarios: scenarioTally.finish(results, totals), drawInputs: prep?.finish() ?? null };
+  return { dams: results, totals, depth, outlines, warnings, cellsVisited, scenarios: scenarioTally.finish(results, totals), drawInputs: prep?.finish() ?? null, pondWater: pondWater.finish() };
 }
 
 /** Builds the crest, fills behind it and records the dam's own pond. */
@@ -235,7 +242,7 @@ function refillOne(grid: Grid, w: Working, box: CellBox, scratch: ReturnType<typ
 }
 
 /** Combines the group's ponds that count in the totals and records each dam's share, depth and outline. */
-function combineGroup(grid: Grid, members: Working[], box: CellBox, depth: NonNullable<EstimateResult['depth']>, outlines: EstimateResult['outlines'], all: Working[]): void {
+function combineGroup(grid: Grid, members: Working[], box: CellBox, depth: NonNullable<EstimateResult['depth']>, outlines: EstimateResult['outlines'], all: Working[], pondWater: PondWaterCollector): void {
   const layers: PondLayer[] = [];
   const owners: Working[] = [];
   for (const w of members) {
@@ -285,6 +292,7 @@ function combineGroup(grid: Grid, members: Working[], box: CellBox, depth: NonNu
     const own = cells.subarray(counts[p]!, counts[p + 1]!);
     if (own.length > 0) outlines.push({ dam: all.indexOf(owners[p]!), kind: 'attributed', polygons: outlineOf(own, grid, box) });
   }
+  pondWater.add(box, combined, cells, counts, owners.map((w) => all.indexOf(w)));
 }
 
 /** Outline rings of window cells, shifted to full-DEM pixel coordinates. */

@@ -17,6 +17,9 @@ import { TOOL_VERSION } from './version.js';
 import { drawBands } from './draws.js';
 import { DRAWS_FILE } from '../uncertainty/describe.js';
 import { defaultUncertaintyParams } from '../uncertainty/params.js';
+import { defaultInfluenceParams } from './influence-stage.js';
+import { addWatershedBands, influenceSummary, readInfluenceLayers, recallGroupsOf, runInfluence, type InfluenceInputOptions } from './influence-run.js';
+import { writeInfluenceFiles } from '../io/write-influence.js';
 
 /**
  * Largest distance a pond may reach from its crest (m): 1000 m. Beaver ponds
@@ -37,10 +40,11 @@ export function defaultParams(): EstimateParams {
     maxCrestLengthM: DEFAULT_MAX_CREST_LENGTH_M,
     minConfidence: DEFAULT_MIN_CONFIDENCE,
     uncertainty: defaultUncertaintyParams(),
+    influence: defaultInfluenceParams(),
   };
 }
 
-export interface RunOptions extends LoadOptions {
+export interface RunOptions extends LoadOptions, InfluenceInputOptions {
   /** `--water-mask`: GeoTIFF or GeoJSON polygons of today's water (replaces detection in the DEM). */
   waterMaskPath?: string | undefined;
   /** `--bed-dem`: a DEM of the bed (before the dams, a drained year, bathymetry), used under today's water. */
@@ -61,16 +65,21 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
       bedDemPath: options.bedDemPath,
       zUnit: loaded.dem.zUnitSource === 'option' ? loaded.dem.zUnit : undefined,
     });
+    // Polygon layers are read before the ponds, so a bad file stops the run early.
+    const layers = options.params.influence ? await readInfluenceLayers(options, loaded.dem) : null;
     // The report's hillshade is gathered from the estimate's own window reads (report/shade-blocks.ts).
     const { maxReachM, maxCrestLengthM, snapRadiusM } = options.params;
     const shade = collectHillshade(loaded.dem, loaded.dams, maxReachM + maxCrestLengthM / 2 + snapRadiusM);
     const result = await estimatePonds(shade.source, loaded.dams, options.params, options.progress, water);
-    const draws = drawBands(result, options.params);
+    // Influence zone, valley bottom and watersheds (influence-stage.ts): before the draws, which resample missed dams by watershed.
+    const influence = options.params.influence && layers ? await runInfluence(loaded.dem, result, options.params.influence, layers) : null;
+    const draws = drawBands(result, options.params, influence ? { recallGroups: recallGroupsOf(influence, result) } : {});
+    if (draws && influence) addWatershedBands(influence, draws);
     const summary = buildSummary({
       version: TOOL_VERSION,
       startedAt,
       finishedAt: new Date(),
-      inputs: [...loaded.inputs, ...(water?.inputs ?? [])],
+      inputs: [...loaded.inputs, ...(water?.inputs ?? []), ...(layers?.inputs ?? [])],
       dem: loaded.demFacts,
       damsFormat: loaded.damsFormat,
       damsCrs: loaded.damsSourceCrs,
@@ -79,13 +88,16 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
       result,
       warnings: [...loaded.warnings, ...result.warnings],
       draws,
+      influence: influence ? influenceSummary(influence) : null,
     });
     await writeFolderAtomically(options.outDir, async (dir) => {
       await writeRunFiles(dir, { summary, result, demTransform: loaded.dem.transform, demCrs: loaded.dem.crs });
       if (draws) {
         const o = draws.outcome;
-        await writeDrawsCsv(join(dir, DRAWS_FILE), { draws: o.draws, damIds: result.dams.map((d) => d.id), totals: o.totals, damVolumeM3: o.damVolumeM3, damAreaM2: o.damAreaM2 });
+        const watersheds = influence?.draws ? { ids: influence.tally.rows.map((r) => r.id), figures: influence.draws } : undefined;
+        await writeDrawsCsv(join(dir, DRAWS_FILE), { draws: o.draws, damIds: result.dams.map((d) => d.id), totals: o.totals, damVolumeM3: o.damVolumeM3, damAreaM2: o.damAreaM2, ...(watersheds ? { watersheds } : {}) });
       }
+      if (influence) await writeInfluenceFiles(dir, { outcome: influence.outcome, rows: influence.tally.rows, dams: result.dams, demCrs: loaded.dem.crs });
       // Last, so it reads the files above: report-map.json and report.html.
       await writeReportFiles(dir, { dem: loaded.dem, dams: loaded.dams, outlines: result.outlines, collected: shade.blocks });
     });

@@ -16,6 +16,8 @@ import type { Scenarios } from './scenarios.js';
 import type { RunDraws } from './draws.js';
 import type { Bands } from '../uncertainty/bands.js';
 import { uncertaintyAssumptions, uncertaintyParameters, type UncertaintySection } from '../uncertainty/describe.js';
+import type { InfluenceSummary } from './influence-run.js';
+import type { InfluenceTotals, SummaryWatershed } from '../tally/watersheds.js';
 
 export const TOOL_NAME = 'pondage';
 
@@ -37,8 +39,10 @@ export interface Summary {
     /** Above and below today's water surface, acre-feet (water-stage.ts). */
     storage_above_surface_acre_ft?: number;
     storage_below_surface_acre_ft?: number;
-  };
+  } & Partial<InfluenceTotals>;
   dams: DamResult[];
+  /** One row per watershed (tally/watersheds.ts); absent with --ponds-only and in older runs. */
+  watersheds?: SummaryWatershed[];
   warnings: { code: string; dam_id: string | null; message: string }[];
   /** Existing and existing-plus-proposed water surfaces (pipeline/scenarios.ts); absent in older runs. */
   scenarios?: Scenarios;
@@ -61,6 +65,8 @@ export function buildSummary(args: {
   warnings: Warning[];
   /** The run's Monte Carlo draws (pipeline/draws.ts), or null. */
   draws?: RunDraws | null;
+  /** The influence stage's part (pipeline/influence-run.ts), or null when it did not run. */
+  influence?: InfluenceSummary | null;
 }): Summary {
   const { result, params } = args;
   const t = result.totals;
@@ -88,10 +94,12 @@ export function buildSummary(args: {
       min_confidence: params.minConfidence,
       ...(params.uncertainty ? uncertaintyParameters(params.uncertainty) : {}),
       ...waterParameters(effectiveWaterParams(params)),
+      ...(args.influence?.parameters ?? {}),
     },
     assumptions: [
       ...(params.uncertainty ? [...args.assumptions, ...uncertaintyAssumptions(params.uncertainty)] : args.assumptions),
       ...waterAssumptions(effectiveWaterParams(params)),
+      ...(args.influence?.assumptions ?? []),
     ],
     cautions: CAUTIONS,
     totals: {
@@ -101,9 +109,11 @@ export function buildSummary(args: {
       storage_acre_ft: m3ToAcreFeet(t.storage_m3),
       storage_above_surface_acre_ft: m3ToAcreFeet(t.storage_above_surface_m3 ?? 0),
       storage_below_surface_acre_ft: m3ToAcreFeet(t.storage_below_surface_m3 ?? 0),
+      ...(args.influence?.totals ?? {}),
       ...(args.draws ? { bands: args.draws.totalsBands } : {}),
     },
     dams: result.dams,
+    ...(args.influence ? { watersheds: args.influence.watersheds } : {}),
     warnings: args.warnings.map((w) => ({ code: w.code, dam_id: w.damId ?? null, message: w.message })),
     ...(result.scenarios ? { scenarios: result.scenarios } : {}),
     ...(args.draws ? { uncertainty: args.draws.section } : {}),
