@@ -40,7 +40,8 @@ export function polygoniseCells(cells: ArrayLike<number>, width: number): PixelP
     const c = i - r * width;
     box[(r - r0 + 1) * bw + (c - c0 + 1)] = 1;
   }
-  const [shape] = contours().size([bw, bh]).smooth(false).thresholds([0.5])(Array.from(box));
+  // d3-contour only indexes the values, so the typed array goes in as is (no copy to a plain array).
+  const [shape] = contours().size([bw, bh]).smooth(false).thresholds([0.5])(box as unknown as number[]);
   if (!shape) return [];
   const dc = c0 - 1;
   const dr = r0 - 1;
