@@ -5,6 +5,7 @@
  * and say in summary.json what was done.
  */
 import type { Warning } from '../errors.js';
+import type { DamInput } from '../inventory.js';
 import { readAreaLayer, type AreaLayer } from '../io/area-layer.js';
 import type { DemSource } from '../io/dem.js';
 import { sha256File } from '../io/hash.js';
@@ -85,10 +86,11 @@ export interface InfluenceRun {
  * influence area and tallies the rows. The stage's warnings are added to
  * `result.warnings`.
  */
-export async function runInfluence(dem: DemSource, result: EstimateResult, params: InfluenceRunParams, layers: InfluenceLayers): Promise<InfluenceRun> {
+export async function runInfluence(dem: DemSource, damInputs: readonly DamInput[], result: EstimateResult, params: InfluenceRunParams, layers: InfluenceLayers): Promise<InfluenceRun> {
   const outcome = await runInfluenceStage({
     dem,
     dams: result.dams,
+    damInputs,
     pondWater: result.pondWater ?? { groups: [], cellCount: 0 },
     params,
     watersheds: layers.watersheds,
@@ -165,7 +167,7 @@ export function influenceSummary(run: InfluenceRun): InfluenceSummary {
     ws
       ? `Watersheds: the polygons of ${ws.path} (${ws.crsLabel}), identified by their "${ws.idField ?? DEFAULT_WATERSHED_FIELD}" property, burnt at cell centres; where polygons overlap the one listed first keeps the cells. The DEM was analysed over the polygons' extent and the ponds' surroundings, so streams start where the area inside that window reaches the threshold.`
       : `Watersheds derived from the whole DEM: sub-watersheds at stream junctions merged downstream until each holds at least ${p.minWatershedAreaM2} m²; cells draining off the DEM before meeting a stream form the watershed "edge".`,
-    'A dam belongs to the watershed its crest location (the midpoint along its crest line, or its point) lies in; a watershed\'s storage, inundated and influence areas and dam counts are the sums of its dams\' figures (dams in no watershed form the row "outside"), its stream length and valley-bottom area are those of its cells.',
+    'A dam belongs to the watershed of its crest\'s lowest DEM cell (where it crosses the channel it dams), or of its point; a watershed\'s storage, inundated and influence areas and dam counts are the sums of its dams\' figures (dams in no watershed form the row "outside"), its stream length and valley-bottom area are those of its cells.',
   ];
   return { totals: run.tally.totals, watersheds: run.tally.rows, parameters, assumptions };
 }

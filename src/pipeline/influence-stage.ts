@@ -27,12 +27,14 @@
 import { totalmem } from 'node:os';
 import { InputError, type Warning } from '../errors.js';
 import type { Grid } from '../grid/grid.js';
+import { rasteriseLines } from '../grid/rasterise-line.js';
 import { xToCol, yToRow, type GeoTransform } from '../grid/transform.js';
 import { streamPolylines } from '../hydro/stream-lines.js';
 import { DEFAULT_STREAM_THRESHOLD_M2 } from '../hydro/streams.js';
 import { analyseTerrain } from '../hydro/terrain.js';
 import { VALLEY_BOTTOM_DEFAULTS, type ValleyBottomOptions } from '../hydro/valley-bottom.js';
 import { DEFAULT_RIPARIAN_DISTANCE_M, DEFAULT_RIPARIAN_RISE_M, influenceZone } from '../influence/zone.js';
+import type { DamInput } from '../inventory.js';
 import type { AreaLayer } from '../io/area-layer.js';
 import { cellMetrics } from '../io/crs.js';
 import type { DemSource } from '../io/dem.js';
@@ -123,6 +125,8 @@ export interface InfluenceOutcome {
 export interface InfluenceStageInputs {
   dem: DemSource;
   dams: DamResult[];
+  /** The inventory as read (crest geometry in the DEM's CRS), in the same order as `dams`. */
+  damInputs: readonly DamInput[];
   pondWater: PondWater;
   params: InfluenceRunParams;
   watersheds: AreaLayer | null;
@@ -182,7 +186,7 @@ export async function runInfluenceStage(inp: InfluenceStageInputs): Promise<Infl
   const classes = zone.classes;
   const z = grid.z;
   for (let i = 0; i < classes.length; i++) if (z[i] !== z[i]) classes[i] = 255;
-  const damUnit = damWatersheds(inp.dams, grid.transform, grid.width, grid.height, labels);
+  const damUnit = damWatersheds(inp.damInputs, grid, labels);
   const influenceS = (performance.now() - t) / 1000;
 
   return {
@@ -303,15 +307,29 @@ function streamLines(grid: Grid, terrain: ReturnType<typeof analyseTerrain>, lab
   });
 }
 
-/** Each dam's watershed: the label of the cell under its crest location (crest_x, crest_y); −1 when none. */
-function damWatersheds(dams: readonly DamResult[], t: GeoTransform, width: number, height: number, labels: Int32Array): Int32Array {
+/**
+ * Each dam's watershed: the label of its crest's lowest DEM cell (where the
+ * crest crosses the channel it dams; the crest rasterised as the pond
+ * engine does), or of the cell under a dam point; −1 when that cell is in no
+ * watershed or off the window.
+ */
+function damWatersheds(dams: readonly DamInput[], grid: Grid, labels: Int32Array): Int32Array {
   const out = new Int32Array(dams.length).fill(-1);
+  const { width, height, transform, z } = grid;
   dams.forEach((d, k) => {
-    if (d.crest_x === undefined || d.crest_y === undefined) return;
-    const c = Math.floor(xToCol(t, d.crest_x));
-    const r = Math.floor(yToRow(t, d.crest_y));
-    if (c < 0 || c >= width || r < 0 || r >= height) return;
-    out[k] = labels[r * width + c]! - 1;
+    let cell = -1;
+    if (d.geometry.kind === 'point') {
+      const c = Math.floor(xToCol(transform, d.geometry.x));
+      const r = Math.floor(yToRow(transform, d.geometry.y));
+      if (c >= 0 && c < width && r >= 0 && r < height) cell = r * width + c;
+    } else {
+      const cells = rasteriseLines(grid, d.geometry.lines).cells;
+      for (let j = 0; j < cells.length; j++) {
+        const i = cells[j]!;
+        if (z[i] === z[i] && (cell < 0 || z[i]! < z[cell]!)) cell = i;
+      }
+    }
+    if (cell >= 0) out[k] = labels[cell]! - 1;
   });
   return out;
 }

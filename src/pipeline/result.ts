@@ -98,7 +98,7 @@ export interface DamResult {
    * The influence stage (pipeline/influence-stage.ts, tally/watersheds.ts).
    * Written by estimate unless --ponds-only; optional so older runs still read.
    */
-  /** Id of the watershed the crest location lies in (`outside` when in none). */
+  /** Id of the watershed of the crest's lowest DEM cell, or of the dam point (`outside` when in none). */
   watershed?: string;
   /** Riparian cells whose nearest pond cell is this dam's water, m² (0 when its water is not counted). */
   riparian_area_m2?: number;

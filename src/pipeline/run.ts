@@ -72,7 +72,7 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
     const shade = collectHillshade(loaded.dem, loaded.dams, maxReachM + maxCrestLengthM / 2 + snapRadiusM);
     const result = await estimatePonds(shade.source, loaded.dams, options.params, options.progress, water);
     // Influence zone, valley bottom and watersheds (influence-stage.ts): before the draws, which resample missed dams by watershed.
-    const influence = options.params.influence && layers ? await runInfluence(loaded.dem, result, options.params.influence, layers) : null;
+    const influence = options.params.influence && layers ? await runInfluence(loaded.dem, loaded.dams, result, options.params.influence, layers) : null;
     const draws = drawBands(result, options.params, influence ? { recallGroups: recallGroupsOf(influence, result) } : {});
     if (draws && influence) addWatershedBands(influence, draws);
     const summary = buildSummary({

@@ -5,7 +5,7 @@
  * Two kinds of figure:
  * - figures of the dams (counts by status, inundated area, influence area,
  *   storage and its split above/below today's water surface): a dam belongs
- *   to the watershed its crest location lies in, and a row's figure is the
+ *   to the watershed of its crest's lowest cell (pipeline/influence-stage.ts), and a row's figure is the
  *   sum of its dams' figures in dam-row order, exactly as the totals sum
  *   every dam. Dams in no watershed (outside every polygon, off the DEM, on
  *   NoData) go to one more row, `outside`, named in a warning. Counts, and
