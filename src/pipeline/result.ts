@@ -76,7 +76,7 @@ export interface DamResult {
   water_surface_area_m2?: number;
   /** `detected` in the DEM, or from the `mask` given with --water-mask; null when none. */
   water_surface_source?: 'detected' | 'mask' | null;
-  /** `found`, or why no surface was kept (no-start, too-small, too-shallow, dips-below, tilted, no-mask); null when not looked for. */
+  /** `found`, or why no surface was kept (no-start, too-small, too-shallow, dips-below, tilted, ground-below, no-mask); null when not looked for. */
   water_surface_check?: string | null;
   /** Crest elevation minus today's water surface, m (negative: overtopped). */
   freeboard_m?: number | null;
