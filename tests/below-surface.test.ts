@@ -9,6 +9,8 @@ import { reconstructBed } from '../src/ponds/bed-reconstruct.js';
 import { detectWaterSurface, DEFAULT_WATER_PARAMS } from '../src/ponds/water-surface.js';
 import { makeDam, rectValley, vValley } from './helpers/synthetic.js';
 import { flattenPond } from './helpers/water-scenes.js';
+import { bedAtDam } from '../src/pipeline/water-stage.js';
+import type { CrestSetup } from '../src/ponds/crest.js';
 
 describe('area–depth power law, V = A·h/(1 + 2/p)', () => {
   // Hayashi & van der Kamp (2000), Journal of Hydrology 237: closed forms for A = 1000 m², h = 1 m.
@@ -114,4 +116,17 @@ describe('rectangular valley with its pond flattened (V = A·h/2, analytic)', ()
       expect(volumeBelow(surface.areaM2, h, 1) / analyticV).toBeLessThan(0.7);
     });
   }
+});
+
+describe('bed at the dam', () => {
+  it('is the setup bed, or for a dam standing out in the DEM with a measured height its crest minus that height when lower', () => {
+    const base = { bedElevM: 10, crestLowM: 11.2, heightM: 1.0, demVisible: true, heightSource: 'measured' as const };
+    // The dry channel below (10 m) is lower than crest − height (10.2 m): the channel.
+    expect(bedAtDam(base as unknown as CrestSetup)).toBe(10);
+    // The ground below the dam is a lower pond's water at 10.6 m: crest − height (10.2 m) is the bed.
+    expect(bedAtDam({ ...base, bedElevM: 10.6 } as unknown as CrestSetup)).toBeCloseTo(10.2, 12);
+    // Not standing out, or a default height: the setup's bed.
+    expect(bedAtDam({ ...base, bedElevM: 10.6, demVisible: false } as unknown as CrestSetup)).toBe(10.6);
+    expect(bedAtDam({ ...base, bedElevM: 10.6, heightSource: 'default' } as unknown as CrestSetup)).toBe(10.6);
+  });
 });

@@ -274,7 +274,10 @@ export class WaterStage {
 
     // Share: the larger surface keeps a cell (ties: the dam listed first); with a bed DEM, no water where the bed is at or above the level.
     candidates.sort((a, b) => b.surface.areaM2 - a.surface.areaM2 || a.order - b.order);
-    const owner = new Uint16Array(grid.width * grid.height);
+    const small = candidates.length < 0xffff;
+    const owner = small ? new Uint16Array(grid.width * grid.height) : new Int32Array(grid.width * grid.height);
+    /** Marks a cell already handed out (above every candidate's k + 1). */
+    const taken = small ? 0xffff : 0x7fffffff;
     const bedZ = win.bedZ;
     candidates.forEach((c, k) => {
       const { cells, levelM } = c.surface;
@@ -294,7 +297,7 @@ export class WaterStage {
       for (let j = 0; j < cells.length; j++) {
         const i = cells[j]!;
         if (owner[i] !== k + 1) continue;
-        owner[i] = 0xffff; // counted once even if listed twice
+        owner[i] = taken; // counted once even if listed twice
         mine.push(i);
         if (win.maskLabels) {
           const label = win.maskLabels[i]!;
