@@ -3,7 +3,9 @@
 // (every pond with its stage–storage curve, the combined water surface and
 // all outputs) timed over repeats in fresh processes. When GRASS GIS is
 // installed, r.lake floods 10 of the same dams at the same levels and the
-// time ratio is printed.
+// time ratio is printed. Then the influence stage (terrain of the whole DEM,
+// derived watersheds, influence zone) is timed on its own in fresh processes,
+// and, with GRASS, r.watershed on the same DEM beside it.
 //
 // Usage: npm run bench [-- --size 5000 --dams 500 --repeats 3 --seed 7]
 import { execFileSync, spawnSync } from 'node:child_process';
@@ -12,6 +14,7 @@ import { join, resolve } from 'node:path';
 import { generateBenchScene } from '../dist/demo/index.js';
 import { writeSceneInputs } from '../dist/io/write-scene.js';
 import { rlakeSideBySide } from './bench-rlake.mjs';
+import { rwatershedSideBySide } from './bench-rwatershed.mjs';
 
 const args = Object.fromEntries(
   process.argv.slice(2).reduce((acc, a, k, all) => (a.startsWith('--') ? [...acc, [a.slice(2), all[k + 1]]] : acc), []),
@@ -61,7 +64,37 @@ if (rlake) {
 } else {
   line('r.lake side by side', 'skipped (GRASS GIS not installed: apt-get install grass-core)');
 }
-writeFileSync(join(root, 'bench.json'), JSON.stringify({ size, damCount, seed, runs, rlake }, null, 2));
+
+// The influence stage: fill, D8, accumulation, streams, HAND, watersheds and the influence zone over the whole DEM.
+const stages = [];
+for (let k = 0; k < repeats; k++) {
+  const out = spawnSync(process.execPath, ['scripts/bench-terrain.mjs', inputs.demPath, inputs.damsPath], { encoding: 'utf8' });
+  if (out.status !== 0) {
+    console.error(out.stderr);
+    process.exit(1);
+  }
+  stages.push(JSON.parse(out.stdout.trim().split('\n').pop()));
+}
+const med = (key) => median(stages.map((r) => r[key]));
+const work = (r) => r.terrainS + r.watershedsS + r.influenceS;
+const workS = median(stages.map(work));
+line('influence stage: read the DEM', `${med('readS').toFixed(2)} s  (${stages[0].cells.toLocaleString('en-US')} cells)`);
+line('  fill, D8, accum, streams, HAND', `${med('terrainS').toFixed(2)} s`);
+line('  watersheds (derived, tallied)', `${med('watershedsS').toFixed(2)} s  (${stages[0].watersheds} watersheds, ${stages[0].streamLinks} stream links)`);
+line('  influence zone', `${med('influenceS').toFixed(2)} s  (${(stages[0].influenceAreaM2 / 1e4).toFixed(1)} ha)`);
+line('  together (median)', `${workS.toFixed(2)} s  [min ${Math.min(...stages.map(work)).toFixed(2)}, max ${Math.max(...stages.map(work)).toFixed(2)}; ${repeats} runs]  goal < 15 s`);
+line('  peak memory (median)', `${med('maxRssMiB').toFixed(0)} MiB (${med('rssBeforeMiB').toFixed(0)} MiB before the stage)  goal < 3072 MiB`);
+const cellAreaM2 = scene.cellM ** 2;
+const rws = rwatershedSideBySide({ demPath: resolve(inputs.demPath), work: join(root, 'rwatershed'), thresholdCells: Math.round(100_000 / cellAreaM2) });
+if (rws) {
+  const oursS = median(stages.map((r) => r.terrainS + r.watershedsS));
+  line('r.watershed -s (same DEM)', `${rws.rwatershedS.toFixed(2)} s`);
+  line('pondage fill … watersheds', `${oursS.toFixed(2)} s`);
+  line('time ratio r.watershed / pondage', `${(rws.rwatershedS / oursS).toFixed(2)} ×`);
+} else {
+  line('r.watershed side by side', 'skipped (GRASS GIS not installed: apt-get install grass-core)');
+}
+writeFileSync(join(root, 'bench.json'), JSON.stringify({ size, damCount, seed, runs, rlake, influenceStage: stages, rwatershed: rws }, null, 2));
 
 function os() {
   try {
