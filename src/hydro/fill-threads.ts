@@ -15,8 +15,13 @@ import { floodTiles, type TilePlan } from './fill-plan.js';
 import type { FillWorkerData } from './fill-worker.js';
 import type { SpillEdges, SpillGraph } from './spill-graph.js';
 
-/** Longest wait for one worker before giving up, milliseconds. */
-const WORKER_TIMEOUT_MS = 15 * 60 * 1000;
+/**
+ * Longest wait for one worker after this thread has flooded its own share,
+ * milliseconds. A worker that has not answered by then (it failed to load, or
+ * died) is dropped and its tiles are flooded here instead: the result is the
+ * same, only slower, and the run never hangs on a lost worker.
+ */
+const WORKER_TIMEOUT_MS = 60 * 1000;
 
 /** How to start a fill worker: a script URL, or bootstrap code to evaluate. */
 export interface FillWorkerEntry {
@@ -69,14 +74,15 @@ export function floodInThreads(
   for (let k = 1; k < threads; k++) {
     const w = workers[k - 1];
     if (w === undefined) continue;
-    if (Atomics.wait(done, k, 0, WORKER_TIMEOUT_MS) === 'timed-out') {
-      void w.worker.terminate();
-      throw new Error(`fill worker ${k} did not finish within ${WORKER_TIMEOUT_MS / 60000} minutes`);
-    }
-    const message = receiveMessageOnPort(w.port)?.message as { edges?: SpillEdges; error?: string } | undefined;
+    const answered = Atomics.wait(done, k, 0, WORKER_TIMEOUT_MS) !== 'timed-out';
+    const message = answered ? (receiveMessageOnPort(w.port)?.message as { edges?: SpillEdges; error?: string } | undefined) : undefined;
     w.port.close();
     void w.worker.terminate();
-    if (message?.edges === undefined) throw new Error(`fill worker ${k} failed: ${message?.error ?? 'no result'}`);
+    if (message?.edges === undefined) {
+      // Lost worker: flood its tiles on this thread (same tiles, same values).
+      floodTiles(sharedZ, plan, k, threads, new TileFlood(plan.tile, plan.tile), filled, label, graph);
+      continue;
+    }
     graph.importEdges(message.edges);
   }
   return { filled, label };
