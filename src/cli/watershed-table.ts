@@ -7,7 +7,7 @@ export function watershedTable(summary: Summary, options: { maxRows?: number } =
   const rows = summary.watersheds;
   if (!rows || rows.length === 0) return '';
   const maxRows = options.maxRows ?? 30;
-  const head = ['watershed', 'dams', 'counted', 'stream km', 'dams/km', 'inundated ha', 'influence ha', 'valley ha', '% infl.', 'storage m³', 'acre-ft'];
+  const head = ['watershed', 'dams', 'counted', 'stream km', 'counted/km', 'inundated ha', 'influence ha', 'valley ha', '% infl.', 'storage m³', 'acre-ft'];
   const body = rows.slice(0, maxRows).map((w) => [
     w.id,
     String(w.dam_count),

@@ -30,7 +30,7 @@ import type { Grid } from '../grid/grid.js';
 import { rasteriseLines } from '../grid/rasterise-line.js';
 import { xToCol, yToRow, type GeoTransform } from '../grid/transform.js';
 import { streamPolylines } from '../hydro/stream-lines.js';
-import { DEFAULT_STREAM_THRESHOLD_M2 } from '../hydro/streams.js';
+import { DEFAULT_STREAM_THRESHOLD_M2, type StreamLinks } from '../hydro/streams.js';
 import { analyseTerrain } from '../hydro/terrain.js';
 import { VALLEY_BOTTOM_DEFAULTS, type ValleyBottomOptions } from '../hydro/valley-bottom.js';
 import { DEFAULT_RIPARIAN_DISTANCE_M, DEFAULT_RIPARIAN_RISE_M, influenceZone } from '../influence/zone.js';
@@ -167,8 +167,8 @@ export async function runInfluenceStage(inp: InfluenceStageInputs): Promise<Infl
     valley = vb.mask;
     warnings.push(...vb.warnings);
   }
-  const geo = unitGeography(grid, labels, units.length, terrain.streamLengthM, valley);
-  const streams = streamLines(grid, terrain, labels, unitOfLink);
+  const geo = unitGeography(grid, labels, units.length, terrain.streamLengthM, valley, terrain.links);
+  const streams = streamLines(grid, terrain, labels, unitOfLink, geo.linkLengthM);
   const watershedsS = (performance.now() - t) / 1000;
   terrain = null; // the terrain's rasters are not needed any more
 
@@ -271,35 +271,43 @@ function checkMemory(cells: number, dem: DemSource, polygons: boolean): void {
   }
 }
 
-/** Per watershed: its area, stream length and valley-bottom area, summed in row-major order. */
-function unitGeography(grid: Grid, labels: Int32Array, count: number, streamLengthM: Float32Array, valley: Uint8Array): { areaM2: Float64Array; streamLengthM: Float64Array; valleyBottomM2: Float64Array } {
+/**
+ * Per watershed: its area, stream length and valley-bottom area, summed in
+ * row-major order; and per stream link its length (one pass over the cells).
+ */
+function unitGeography(
+  grid: Grid,
+  labels: Int32Array,
+  count: number,
+  streamLengthM: Float32Array,
+  valley: Uint8Array,
+  links: StreamLinks,
+): { areaM2: Float64Array; streamLengthM: Float64Array; valleyBottomM2: Float64Array; linkLengthM: Float64Array } {
   const areaM2 = new Float64Array(count + 1);
   const lengthM = new Float64Array(count + 1);
   const valleyM2 = new Float64Array(count + 1);
+  const linkLengthM = new Float64Array(links.count + 1);
+  const link = links.link;
   const { width, height, cellAreaM2 } = grid;
   for (let r = 0; r < height; r++) {
     const a = cellAreaM2[r]!;
     const base = r * width;
     for (let i = base; i < base + width; i++) {
+      const len = streamLengthM[i]!;
+      if (len !== 0) linkLengthM[link[i]!]! += len;
       const l = labels[i]!;
       if (l === 0) continue;
       areaM2[l]! += a;
-      lengthM[l]! += streamLengthM[i]!;
+      lengthM[l]! += len;
       if (valley[i] === 1) valleyM2[l]! += a;
     }
   }
-  return { areaM2: areaM2.subarray(1), streamLengthM: lengthM.subarray(1), valleyBottomM2: valleyM2.subarray(1) };
+  return { areaM2: areaM2.subarray(1), streamLengthM: lengthM.subarray(1), valleyBottomM2: valleyM2.subarray(1), linkLengthM };
 }
 
 /** Stream links as lines with their lengths and watersheds. */
-function streamLines(grid: Grid, terrain: ReturnType<typeof analyseTerrain>, labels: Int32Array, unitOfLink: Int32Array | null): StreamLine[] {
-  const { links, streamLengthM } = terrain;
-  const lengths = new Float64Array(links.count + 1);
-  const link = links.link;
-  for (let i = 0; i < link.length; i++) {
-    const id = link[i]!;
-    if (id !== 0) lengths[id]! += streamLengthM[i]!;
-  }
+function streamLines(grid: Grid, terrain: ReturnType<typeof analyseTerrain>, labels: Int32Array, unitOfLink: Int32Array | null, lengths: Float64Array): StreamLine[] {
+  const { links } = terrain;
   return streamPolylines(grid, terrain.dir, links).map((line) => {
     const first = links.firstCell[line.linkId] ?? -1;
     const unit = unitOfLink ? unitOfLink[line.linkId]! - 1 : first >= 0 ? labels[first]! - 1 : -1;

@@ -142,7 +142,7 @@ function overlapWarnings(grid: Pick<Grid, 'width' | 'height' | 'transform' | 'ce
     const alone = rasterisePolygons({ width: w, height: h, transform: windowTransform(transform, box.col0, box.row0) }, [feature]).labels;
     let cells = 0;
     let areaM2 = 0;
-    const others = new Set<string>();
+    const lostTo = new Uint8Array(features.length);
     for (let r = 0; r < h; r++) {
       for (let c = 0; c < w; c++) {
         if (alone[r * w + c] === 0) continue;
@@ -150,10 +150,12 @@ function overlapWarnings(grid: Pick<Grid, 'width' | 'height' | 'transform' | 'ce
         if (owner < 0 || owner === f || featureUnit[owner] === featureUnit[f]) continue;
         cells++;
         areaM2 += grid.cellAreaM2[r + box.row0]!;
-        others.add(features[owner]!.id);
+        lostTo[owner] = 1;
       }
     }
     if (cells === 0) continue;
+    const others = new Set<string>();
+    for (let k = 0; k < features.length; k++) if (lostTo[k] === 1) others.add(features[k]!.id);
     const names = [...others].slice(0, 5).map((id) => `'${id}'`).join(', ');
     out.push({
       code: 'overlapping-watersheds',
