@@ -288,6 +288,9 @@ describe('watersheds and valleys of different size', () => {
     });
     s['watersheds'] = rows;
     (s.totals as unknown as Record<string, unknown>)['influence_area_m2'] = rows[0]!.influence_area_m2 + rows[1]!.influence_area_m2;
+    // The totals of the land figures are the rows' sums, as an estimate writes them.
+    (s.totals as unknown as Record<string, unknown>)['stream_length_m'] = 300;
+    (s.totals as unknown as Record<string, unknown>)['valley_bottom_area_m2'] = 9000;
     for (const d of s.dams) (d as unknown as Record<string, unknown>)['watershed'] = shed(d.id);
     await writeFile(summaryPath, JSON.stringify(s));
     // Draws with dam rows only: each dam its deterministic volume plus a shared error.

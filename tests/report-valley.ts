@@ -81,7 +81,8 @@ export async function makeValleyRun(options: { draws?: number } = {}): Promise<V
   };
   await writeFile(join(dir, 'dams.geojson'), JSON.stringify(dams));
   const outDir = join(dir, 'out');
-  const params = { ...defaultParams(), uncertainty: { ...defaultUncertaintyParams(), draws: options.draws ?? 0 } };
+  // Ponds only (--ponds-only): the report's influence and watershed sections are exercised with enrichSummary.
+  const params = { ...defaultParams(), influence: undefined, uncertainty: { ...defaultUncertaintyParams(), draws: options.draws ?? 0 } };
   await runEstimate({ demPaths: [join(dir, 'dem.tif')], damsPath: join(dir, 'dams.geojson'), outDir, params });
   return { dir, outDir, summaryText: await readFile(join(outDir, 'summary.json'), 'utf8') };
 }
