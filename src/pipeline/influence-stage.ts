@@ -18,11 +18,11 @@
  * cuts a catchment starts its streams where the area inside reaches the
  * threshold.
  *
- * Memory: about {@link BYTES_PER_ANALYSED_CELL} bytes per analysed cell at the
- * peak (the DEM, filled DEM, directions, flow order, contributing area,
- * stream links and lengths, HAND and its drainage cells, labels), e.g.
- * 1.3 GiB for 25 million cells; the terrain's rasters are released before
- * the influence zone is computed.
+ * Memory: plan on {@link BYTES_PER_ANALYSED_CELL} bytes per analysed cell at
+ * the peak (the DEM, filled DEM, directions, flow order, contributing area,
+ * stream links and lengths, HAND and its drainage cells, labels): the
+ * bench's 25 million cells peaked at 1.43 GiB with the ponds' data; the
+ * terrain's rasters are released before the influence zone is computed.
  */
 import { totalmem } from 'node:os';
 import { InputError, type Warning } from '../errors.js';
@@ -51,8 +51,8 @@ import { clipBox, unionBox, type CellBox } from './windows.js';
  */
 export const DEFAULT_MIN_WATERSHED_AREA_M2 = 1_000_000;
 
-/** Peak bytes per analysed DEM cell (see the file comment), measured on the bench DEM and rounded up. */
-export const BYTES_PER_ANALYSED_CELL = 56;
+/** Bytes per analysed DEM cell to plan for (see the file comment): the bench run's peak per cell (61 B, the process with the ponds' data), rounded up. */
+export const BYTES_PER_ANALYSED_CELL = 64;
 
 /** The stage's parameters (metres, m²). */
 export interface InfluenceRunParams {
