@@ -73,7 +73,9 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
     const result = await estimatePonds(shade.source, loaded.dams, options.params, options.progress, water);
     // Influence zone, valley bottom and watersheds (influence-stage.ts): before the draws, which resample missed dams by watershed.
     const influence = options.params.influence && layers ? await runInfluence(loaded.dem, loaded.dams, result, options.params.influence, layers) : null;
+    const drawsStart = performance.now();
     const draws = drawBands(result, options.params, influence ? { recallGroups: recallGroupsOf(influence, result) } : {});
+    const drawsS = (performance.now() - drawsStart) / 1000;
     if (draws && influence) addWatershedBands(influence, draws);
     const summary = buildSummary({
       version: TOOL_VERSION,
@@ -88,6 +90,7 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
       result,
       warnings: [...loaded.warnings, ...result.warnings],
       draws,
+      drawsS,
       influence: influence ? influenceSummary(influence) : null,
     });
     await writeFolderAtomically(options.outDir, async (dir) => {

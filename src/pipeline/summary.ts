@@ -24,7 +24,7 @@ export const TOOL_NAME = 'pondage';
 export interface Summary {
   tool: { name: string; version: string };
   /** Facts that differ between otherwise identical runs (clock times). */
-  run: { started_at: string; finished_at: string; duration_s: number; cells_visited: number };
+  run: { started_at: string; finished_at: string; duration_s: number; cells_visited: number; draws_s?: number };
   inputs: InputRecord[];
   dem: DemDescription;
   dams_file: { format: string; crs: string };
@@ -63,8 +63,9 @@ export function buildSummary(args: {
   assumptions: string[];
   result: EstimateResult;
   warnings: Warning[];
-  /** The run's Monte Carlo draws (pipeline/draws.ts), or null. */
+  /** The run's Monte Carlo draws (pipeline/draws.ts), or null, and the seconds they took (clock time, under `run`). */
   draws?: RunDraws | null;
+  drawsS?: number;
   /** The influence stage's part (pipeline/influence-run.ts), or null when it did not run. */
   influence?: InfluenceSummary | null;
 }): Summary {
@@ -77,6 +78,7 @@ export function buildSummary(args: {
       finished_at: args.finishedAt.toISOString(),
       duration_s: (args.finishedAt.getTime() - args.startedAt.getTime()) / 1000,
       cells_visited: result.cellsVisited,
+      ...(args.draws ? { draws_s: args.drawsS ?? 0 } : {}),
     },
     inputs: args.inputs,
     dem: args.dem,
