@@ -189,7 +189,7 @@ describe('a pond holding water, from the DEM alone', () => {
     expect(d.water_surface_elev_m).toBeCloseTo(LEVEL, 6);
     expect(d.bed_source).toBe('power-law');
     expect(d.power_p).toBe(0.91);
-    expect(d.volume_below_surface_m3).toBeCloseTo(volumeBelow(d.water_surface_area_m2!, d.depth_at_dam_m!, 0.91), 9);
+    expect(d.volume_below_surface_m3).toBeCloseTo(volumeBelow(d.water_surface_area_m2!, d.depth_at_dam_m!, 0.91), 5); // figures are stepped at 2^-20 m³ (FIGURE_STEP) so sums are exact
     // Hayashi & van der Kamp (2000): on a V-shaped valley (a cone-like pond, V = A·h/3 analytic) p = 0.91 gives a little less.
     const analytic = (M * LEVEL ** 3) / (3 * S);
     expect(d.volume_below_surface_m3! / analytic).toBeGreaterThan(0.9);

@@ -151,6 +151,7 @@ export async function estimatePonds(
 
   warnings.push(...water.finish());
   const results = work.map((w) => w.result);
+  for (const r of results) quantiseFigures(r);
   const totals = totalsOf(results);
   return { dams: results, totals, depth, outlines, warnings, cellsVisited, scenarios: scenarioTally.finish(results, totals), drawInputs: prep?.finish() ?? null, pondWater: pondWater.finish() };
 }
@@ -439,6 +440,32 @@ function emptyResult(dam: DamInput, minConfidence: number): DamResult {
 }
 
 /** Totals are the sums of the per-dam rows, in row order, so they agree exactly. */
+/**
+ * Step of every per-dam area and volume, m² or m³: 2^-20 (about 1e-6). Sums
+ * of whole multiples of a power of two are exact in any order while they stay
+ * below 2^53 steps (here 8.6e9 m³), so totals, watershed rows and any other
+ * grouping of the dams add up to the same double, not merely to within
+ * rounding. The step is far below any figure's meaning.
+ */
+export const FIGURE_STEP = 2 ** -20;
+
+const onStep = (v: number): number => Math.round(v / FIGURE_STEP) * FIGURE_STEP;
+
+/** Puts a dam's additive figures on FIGURE_STEP; its volume stays the exact sum of its parts. */
+function quantiseFigures(d: DamResult): void {
+  d.area_m2 = onStep(d.area_m2);
+  if (d.water_surface_area_m2 !== undefined && d.water_surface_area_m2 !== null) d.water_surface_area_m2 = onStep(d.water_surface_area_m2);
+  const above = d.volume_above_surface_m3;
+  const below = d.volume_below_surface_m3;
+  if (above !== undefined && above !== null && below !== undefined && below !== null) {
+    d.volume_above_surface_m3 = onStep(above);
+    d.volume_below_surface_m3 = onStep(below);
+    d.volume_m3 = d.volume_above_surface_m3 + d.volume_below_surface_m3;
+  } else {
+    d.volume_m3 = onStep(d.volume_m3);
+  }
+}
+
 function totalsOf(dams: DamResult[]): Totals {
   let area = 0;
   let volume = 0;
