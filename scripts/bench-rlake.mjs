@@ -54,7 +54,7 @@ export async function rlakeSideBySide({ demPath, damsPath, work, count }) {
     const sr = (seed - sc) / grid.width;
     const x = colToX(grid.transform, sc + 0.5);
     const y = rowToY(grid.transform, sr + 0.5);
-    plan.push({ file, level: fill.waterLevelM, x, y, cells: pondAt(fill, fill.waterLevelM).cellCount });
+    plan.push({ id: dam.id, file, level: fill.waterLevelM, x, y, cells: pondAt(fill, fill.waterLevelM).cellCount });
   }
   await dem.close();
   writeFileSync(join(work, 'plan.txt'), plan.map((p, k) => `${k} ${p.file} ${p.level.toPrecision(17)} ${p.x} ${p.y}`).join('\n') + '\n');
@@ -76,10 +76,12 @@ done < "${join(work, 'plan.txt')}"
   const out = execFileSync('grass', ['--tmp-location', 'XY', '--exec', 'bash', script], { encoding: 'utf8', stdio: ['ignore', 'pipe', 'ignore'] });
   let rlakeS = 0;
   let agree = 0;
+  const mismatches = [];
   for (const row of out.trim().split('\n')) {
     const [k, t0, t1, n] = row.split(/\s+/);
     rlakeS += Number(t1) - Number(t0);
     if (Number(n) === plan[Number(k)].cells) agree++;
+    else mismatches.push({ dam: plan[Number(k)].id, pondage: plan[Number(k)].cells, rlake: Number(n) });
   }
-  return { count: plan.length, rlakeS, pondageS, agree };
+  return { count: plan.length, rlakeS, pondageS, agree, mismatches };
 }

@@ -69,6 +69,7 @@ if (rlake) {
   line('r.lake, 10 dams (flood only)', `${rlake.rlakeS.toFixed(2)} s`);
   line('pondage, same 10 dams (fill only)', `${rlake.pondageS.toFixed(3)} s`);
   line('time ratio r.lake / pondage', `${(rlake.rlakeS / rlake.pondageS).toFixed(1)} ×  (same levels; cell counts agree on ${rlake.agree} of ${rlake.count})`);
+  for (const m of rlake.mismatches) line(`  ${m.dam}: pondage / r.lake cells`, `${m.pondage} / ${m.rlake}`);
 } else {
   line('r.lake side by side', 'skipped (GRASS GIS not installed: apt-get install grass-core)');
 }
