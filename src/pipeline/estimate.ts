@@ -464,6 +464,8 @@ function quantiseFigures(d: DamResult): void {
   } else {
     d.volume_m3 = onStep(d.volume_m3);
   }
+  // The mean depth stays the quotient of the reported figures.
+  d.mean_depth_m = d.area_m2 > 0 ? d.volume_m3 / d.area_m2 : 0;
 }
 
 function totalsOf(dams: DamResult[]): Totals {
