@@ -7,6 +7,7 @@
  * of half its area: take areas from cell counts, never from these polygons.
  */
 import { contours } from 'd3-contour';
+import { cellBounds } from './cell-bounds.js';
 
 /** Rings of one polygon: exterior first, then holes; each ring closed. */
 export type PixelPolygon = [number, number][][];
@@ -17,19 +18,7 @@ export type PixelPolygon = [number, number][][];
  */
 export function polygoniseCells(cells: ArrayLike<number>, width: number): PixelPolygon[] {
   if (cells.length === 0) return [];
-  let c0 = Infinity;
-  let r0 = Infinity;
-  let c1 = -Infinity;
-  let r1 = -Infinity;
-  for (let k = 0; k < cells.length; k++) {
-    const i = cells[k]!;
-    const r = Math.floor(i / width);
-    const c = i - r * width;
-    if (c < c0) c0 = c;
-    if (c > c1) c1 = c;
-    if (r < r0) r0 = r;
-    if (r > r1) r1 = r;
-  }
+  const { c0, c1, r0, r1 } = cellBounds(cells, width);
   // One empty cell of padding on every side closes every ring inside the box.
   const bw = c1 - c0 + 3;
   const bh = r1 - r0 + 3;

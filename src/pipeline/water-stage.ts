@@ -44,6 +44,7 @@ import {
 } from '../ponds/water-surface.js';
 import type { BedSource, DamResult, StageRow } from './result.js';
 import type { CellBox } from './windows.js';
+import { cellBounds } from '../grid/cell-bounds.js';
 
 /** Run parameters of the water stage. */
 export interface WaterRunParams {
@@ -333,19 +334,7 @@ export class WaterStage {
     if (!fill || this.changed.length === 0) return false;
     const order = fill.order;
     if (order.length === 0) return true;
-    let c0 = Infinity;
-    let c1 = -Infinity;
-    let r0 = Infinity;
-    let r1 = -Infinity;
-    for (let k = 0; k < order.length; k++) {
-      const i = order[k]!;
-      const col = i % width;
-      const row = (i - col) / width;
-      if (col < c0) c0 = col;
-      if (col > c1) c1 = col;
-      if (row < r0) r0 = row;
-      if (row > r1) r1 = row;
-    }
+    const { c0, c1, r0, r1 } = cellBounds(order, width);
     for (let k = 0; k < this.changed.length; k++) {
       const i = this.changed[k]!;
       const col = i % width;

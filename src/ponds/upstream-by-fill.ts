@@ -23,6 +23,7 @@ import { setupCrest, type CrestSetup } from './crest.js';
 import { fillBehindCrest, type FillOptions, type FillScratch, type PondFill } from './fill.js';
 import type { PondParams } from './params.js';
 import { pondAt } from './stage-storage.js';
+import { cellBounds } from '../grid/cell-bounds.js';
 
 /** Trial floods reach at most this far beyond the crest's extent, metres. */
 export const DECISION_REACH_M = 100;
@@ -70,19 +71,7 @@ export function setupAndFill(
 /** The crest's cell extent grown by DECISION_REACH_M, within the caller's reach box and the grid. */
 function decisionBox(grid: Grid, crestCells: Int32Array, outer: FillOptions['reachBox']): NonNullable<FillOptions['reachBox']> {
   const { width, height } = grid;
-  let c0 = width;
-  let c1 = 0;
-  let r0 = height;
-  let r1 = 0;
-  for (let k = 0; k < crestCells.length; k++) {
-    const i = crestCells[k]!;
-    const col = i % width;
-    const row = (i - col) / width;
-    if (col < c0) c0 = col;
-    if (col > c1) c1 = col;
-    if (row < r0) r0 = row;
-    if (row > r1) r1 = row;
-  }
+  const { c0, c1, r0, r1 } = cellBounds(crestCells, width);
   const midRow = Math.min(height - 1, (r0 + r1) >> 1);
   const dc = Math.ceil(DECISION_REACH_M / grid.cellWidthM[midRow]!);
   const dr = Math.ceil(DECISION_REACH_M / grid.cellHeightM);

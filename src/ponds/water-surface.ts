@@ -248,22 +248,7 @@ const SMOOTH_RELIEF_M = 0.15;
 function medianLocalRangeM(z: Float32Array, mark: Uint8Array, width: number, height: number, cells: Int32Array, buf: Float64Array): number {
   const n = Math.min(cells.length, buf.length);
   for (let k = 0; k < n; k++) {
-    const i = cells[k]!;
-    const col = i % width;
-    const row = (i - col) / width;
-    let lo = Infinity;
-    let hi = -Infinity;
-    for (let rr = Math.max(0, row - 1); rr <= Math.min(height - 1, row + 1); rr++) {
-      for (let cc = Math.max(0, col - 1); cc <= Math.min(width - 1, col + 1); cc++) {
-        const j = rr * width + cc;
-        if ((mark[j]! & BLOCKED) !== 0) continue;
-        const v = z[j]!;
-        if (v !== v) continue;
-        if (v < lo) lo = v;
-        if (v > hi) hi = v;
-      }
-    }
-    buf[k] = hi - lo;
+    buf[k] = localRangeM(z, mark, width, height, cells[k]!);
   }
   return n > 0 ? median(buf, n) : Infinity;
 }

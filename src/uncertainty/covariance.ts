@@ -28,6 +28,7 @@
  * size in metres, so geographic DEMs work (distances between points further
  * apart than the range do not matter).
  */
+import { cellBounds } from '../grid/cell-bounds.js';
 
 /** Spherical covariance at distance hM (m) for sill σ² (m²) and range L (m). */
 export function sphericalCovariance(hM: number, sillM2: number, rangeM: number): number {
@@ -121,19 +122,7 @@ export function buildSupport(args: {
   const { cells, width, colOffset, rowOffset, cellAreaM2, cellWM, cellHM } = args;
   const refCol = (args.refCell % width) + colOffset;
   const refRow = Math.floor(args.refCell / width) + rowOffset;
-  let c0 = Infinity;
-  let c1 = -Infinity;
-  let r0 = Infinity;
-  let r1 = -Infinity;
-  for (let k = 0; k < cells.length; k++) {
-    const i = cells[k]!;
-    const col = i % width;
-    const row = (i - col) / width;
-    if (col < c0) c0 = col;
-    if (col > c1) c1 = col;
-    if (row < r0) r0 = row;
-    if (row > r1) r1 = row;
-  }
+  const { c0, c1, r0, r1 } = cellBounds(cells, width);
   const empty = new Float64Array(0);
   if (cells.length === 0) {
     return { refCol, refRow, cellWM, cellHM, blockCol: empty, blockRow: empty, blockAreaM2: empty, areaM2: 0, col0: refCol, col1: refCol, row0: refRow, row1: refRow };
