@@ -13,7 +13,10 @@
  * - `draw` 0 … N−1; rows of draw k come together: the totals row, then one
  *   row per watershed when the run has watersheds (scope `watershed`, id the
  *   watershed's id, in summary.json's order; its totals' figures are the
- *   sums of its dams' figures in that draw), then one row per dam (scope
+ *   sums of its dams' figures in that draw), then, when the run has the
+ *   proposed-structures scenario, two rows `scenario,existing` and
+ *   `scenario,with_proposed` (storage_m3 and inundated_area_m2 only; the
+ *   existing row equals the totals row), then one row per dam (scope
  *   `dam`, id the dam's id, in summary.json's order).
  * - Totals rows fill the totals' figures; dam rows the dam's own water in
  *   that draw (`volume_m3`, `area_m2`: 0 when the dam does not count).
@@ -24,6 +27,7 @@
  */
 import { writeFile } from 'node:fs/promises';
 import { csvField } from './csv-write.js';
+import type { ScenarioSeries } from '../uncertainty/scenario-draws.js';
 
 /** What draws.csv holds. Per-dam arrays are dam-major (d·draws + k). */
 export interface DrawsTable {
@@ -37,6 +41,8 @@ export interface DrawsTable {
   damRows?: readonly number[];
   /** Watershed rows: ids and, per watershed, per-draw figures named as the first three totals (storage_m3, inundated_area_m2, dams_in_totals). */
   watersheds?: { ids: readonly string[]; figures: readonly Record<string, Float64Array>[] };
+  /** Scenario rows (pipeline/scenario-bands.ts): per-draw storage_m3 (m³) and inundated_area_m2 (m²) of each scenario. */
+  scenarios?: { existing: ScenarioSeries; with_proposed: ScenarioSeries };
 }
 
 /** The file's text. */
@@ -59,6 +65,12 @@ export function drawsCsv(t: DrawsTable): string {
         const cells = totalNames.slice(0, 3).map((n) => (f[n] ? String(f[n][k]!) : ''));
         lines.push(`${k},watershed,${csvField(id)},${cells.join(',')},,${emptyTail}`);
       });
+    }
+    if (t.scenarios) {
+      for (const id of ['existing', 'with_proposed'] as const) {
+        const f = t.scenarios[id];
+        lines.push(`${k},scenario,${id},${String(f.storage_m3[k]!)},${String(f.inundated_area_m2[k]!)},,,${emptyTail}`);
+      }
     }
     for (const d of rows) {
       lines.push(`${k},dam,${ids[d]!}${emptyTotals},${String(t.damVolumeM3[d * N + k]!)},${String(t.damAreaM2[d * N + k]!)}${emptyTail}`);

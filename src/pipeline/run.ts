@@ -15,6 +15,7 @@ import { loadInputs, type LoadOptions } from './load.js';
 import { buildSummary, type Summary } from './summary.js';
 import { TOOL_VERSION } from './version.js';
 import { drawBands } from './draws.js';
+import { addScenarioBands } from './scenario-bands.js';
 import { DRAWS_FILE } from '../uncertainty/describe.js';
 import { defaultUncertaintyParams } from '../uncertainty/params.js';
 import { defaultInfluenceParams } from './influence-stage.js';
@@ -75,8 +76,10 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
     const influence = options.params.influence && layers ? await runInfluence(loaded.dem, loaded.dams, result, options.params.influence, layers) : null;
     const drawsStart = performance.now();
     const draws = drawBands(result, options.params, influence ? { recallGroups: recallGroupsOf(influence, result) } : {});
-    const drawsS = (performance.now() - drawsStart) / 1000;
     if (draws && influence) addWatershedBands(influence, draws);
+    // The with-proposed scenario in every draw (bands on summary.json's scenarios).
+    const scenarioDraws = addScenarioBands(result, draws);
+    const drawsS = (performance.now() - drawsStart) / 1000;
     const summary = buildSummary({
       version: TOOL_VERSION,
       startedAt,
@@ -98,7 +101,7 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
       if (draws) {
         const o = draws.outcome;
         const watersheds = influence?.draws ? { ids: influence.tally.rows.map((r) => r.id), figures: influence.draws } : undefined;
-        await writeDrawsCsv(join(dir, DRAWS_FILE), { draws: o.draws, damIds: result.dams.map((d) => d.id), totals: o.totals, damVolumeM3: o.damVolumeM3, damAreaM2: o.damAreaM2, ...(watersheds ? { watersheds } : {}) });
+        await writeDrawsCsv(join(dir, DRAWS_FILE), { draws: o.draws, damIds: result.dams.map((d) => d.id), totals: o.totals, damVolumeM3: o.damVolumeM3, damAreaM2: o.damAreaM2, ...(watersheds ? { watersheds } : {}), ...(scenarioDraws ? { scenarios: scenarioDraws } : {}) });
       }
       if (influence) await writeInfluenceFiles(dir, { outcome: influence.outcome, rows: influence.tally.rows, dams: result.dams, demCrs: loaded.dem.crs });
       // Last, so it reads the files above: report-map.json and report.html.

@@ -17,6 +17,7 @@ import { combinePonds, type PondLayer } from '../ponds/combine.js';
 import type { PondFill } from '../ponds/fill.js';
 import type { DamStatus } from '../inventory.js';
 import type { DamResult, Totals } from './result.js';
+import type { Bands } from '../uncertainty/bands.js';
 
 /** Storage and inundated area of one scenario. */
 export interface ScenarioFigures {
@@ -24,6 +25,8 @@ export interface ScenarioFigures {
   dams_counted: number;
   inundated_area_m2: number;
   storage_m3: number;
+  /** Bands of the per-draw figures (keys storage_m3, inundated_area_m2), when the run has draws (pipeline/scenario-bands.ts). */
+  bands?: Bands;
 }
 
 /** One dam's share of the with-proposed water surface. */
@@ -44,7 +47,7 @@ export interface Scenarios {
   /** Existing dams plus the proposed structures with a design height. */
   with_proposed: ScenarioFigures & { proposed_counted: number; dams: ScenarioDam[] };
   /** with_proposed minus existing. */
-  added: { inundated_area_m2: number; storage_m3: number };
+  added: { inundated_area_m2: number; storage_m3: number; bands?: Bands };
   /** Existing dams whose crest a proposed pond covers, with the water they own in each scenario (m³). */
   drowned_by_proposed: { id: string; drowned_by: string; volume_existing_m3: number; volume_with_proposed_m3: number }[];
   /** Proposed dams not in with_proposed, and why. */

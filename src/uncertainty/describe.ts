@@ -70,7 +70,7 @@ export function sourceRecords(u: UncertaintyParams, defaultHeightM: number, maxH
     {
       name: 'height_measured',
       enabled: u.heightError && u.heightSurveySdM > 0,
-      distribution: `Normal(height_m, ${u.heightSurveySdM} m), held at 0 m from below; proposed structures keep their design height`,
+      distribution: `Normal(height_m, ${u.heightSurveySdM} m), held at 0 m from below; proposed structures' design heights drawn the same way (they count only in the with-proposed scenario)`,
       basis: 'Survey error of a measured crest height: a project choice (an uneven stick-and-mud crest over a soft bed; from memory, common practice).',
     },
     {

@@ -97,6 +97,11 @@ export interface DrawOutcome {
   included: Uint8Array;
   /** Per-draw totals by name (same keys as totalsBands). */
   totals: Record<string, Float64Array>;
+  /** What a second combination of the ponds needs (uncertainty/scenario-draws.ts): each dam's drawn level on the DEM (m, dam-major; proposed dams too), its DEM error's within-pond sd (m), and the volume terms' sum per dam and draw (m³) with 1 where every term took its deterministic value (null without terms). */
+  levelsM: Float64Array;
+  withinSdM: Float64Array;
+  termsM3: Float64Array | null;
+  termsAtDeterministic: Uint8Array | null;
   monteCarlo: {
     /** Standard error of p95 of each total (order-statistic interval). */
     p95StandardError: Record<string, number>;
@@ -309,6 +314,20 @@ export function runDraws(args: {
     totals.missing_area_m2 = missing.areaM2;
   }
 
+  // Per dam and draw: the terms' sum and whether they all took their deterministic values (for a second combination of the ponds).
+  let termsM3: Float64Array | null = null;
+  let termsAtDeterministic: Uint8Array | null = null;
+  if (terms.length > 0) {
+    termsM3 = new Float64Array(D * N);
+    termsAtDeterministic = new Uint8Array(D * N);
+    for (let d = 0; d < D; d++) {
+      for (let k = 0; k < N; k++) {
+        termsM3[d * N + k] = termSum(d, k);
+        termsAtDeterministic[d * N + k] = termsAtDet(d, k) ? 1 : 0;
+      }
+    }
+  }
+
   const totalsBands: Bands = {};
   const p95StandardError: Record<string, number> = {};
   for (const [name, values] of Object.entries(totals)) {
@@ -324,6 +343,10 @@ export function runDraws(args: {
     damAreaM2,
     included,
     totals,
+    levelsM: levels,
+    withinSdM: dem.withinSdM,
+    termsM3,
+    termsAtDeterministic,
     monteCarlo: {
       p95StandardError,
       tooFew: tooFewDraws(N, totalsBands.storage_m3!, p95StandardError.storage_m3!),
@@ -358,7 +381,7 @@ function levelFloor(terms: readonly DamVolumeTerm[], d: number, deterministicLev
 }
 
 /** The pond's expected area and volume when its level is smeared by N(0, s²) (five-point Gauss–Hermite). */
-function smearedPond(fill: DamDrawInput['fill'], levelM: number, s: number): { cellCount: number; areaM2: number; volumeM3: number } {
+export function smearedPond(fill: DamDrawInput['fill'], levelM: number, s: number): { cellCount: number; areaM2: number; volumeM3: number } {
   let area = 0;
   let volume = 0;
   let cells = 0;
@@ -377,8 +400,9 @@ function drawHeights(inp: DamDrawInput, det: DeterministicDam, u: UncertaintyPar
   out.fill(H);
   if (!u.heightError || !inp.holdsWater) return;
   const rng = createRng(deriveSeed(u.seed, 'height', det.id));
-  if (inp.heightSource === 'measured' && det.status !== 'proposed' && u.heightSurveySdM > 0) {
+  if (inp.heightSource === 'measured' && u.heightSurveySdM > 0) {
     // Survey error: Normal(H, sd), held at 0 from below (a dam cannot be lower than its bed).
+    // A proposed structure's design height is drawn the same way (it is built to a surveyed height); it counts only in the with-proposed scenario.
     for (let k = 0; k < out.length; k++) out[k] = Math.max(0, H + u.heightSurveySdM * normal(rng));
   } else if (inp.heightSource === 'default' && sigmaLn > 0) {
     // Unmeasured: lognormal with median the default height, held at the skip height from above.

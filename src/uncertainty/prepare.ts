@@ -96,6 +96,15 @@ export interface OverlapCluster {
 export interface DrawInputs {
   dams: (DamDrawInput | null)[];
   clusters: OverlapCluster[];
+  /**
+   * The with-proposed scenario's second pass: the groups of overlapping ponds
+   * once the designed proposed structures join them (only groups holding at
+   * least one such structure; every other group is the same as in
+   * `clusters`). `dams` holds, for the members of these groups, copies of
+   * their inputs whose `cluster` and `shares` refer to `clusters` here (null
+   * elsewhere); `designed` is 1 for a proposed dam with a design height.
+   */
+  scenario?: { dams: (DamDrawInput | null)[]; clusters: OverlapCluster[]; designed: Uint8Array };
 }
 
 /** A dam of a group as the pipeline holds it after flooding. */
@@ -121,6 +130,9 @@ export interface DrawPrep {
 export function createDrawPrep(u: UncertaintyParams, pond: PondParams, damCount: number): DrawPrep {
   const dams: (DamDrawInput | null)[] = new Array<DamDrawInput | null>(damCount).fill(null);
   const clusters: OverlapCluster[] = [];
+  const scenarioDams: (DamDrawInput | null)[] = new Array<DamDrawInput | null>(damCount).fill(null);
+  const scenarioClusters: OverlapCluster[] = [];
+  const designed = new Uint8Array(damCount);
   const demOn = u.demError && u.demRmseM > 0;
   return {
     floodTopM(dam, setup) {
@@ -130,7 +142,8 @@ export function createDrawPrep(u: UncertaintyParams, pond: PondParams, damCount:
       const demSd = demOn ? Math.SQRT2 * u.demRmseM : 0;
       let heightUpM = 0;
       let heightSd = 0;
-      if (u.heightError && setup.heightSource === 'measured' && dam.status !== 'proposed') heightSd = u.heightSurveySdM;
+      // Proposed structures too: their design height is drawn with the survey error (the with-proposed scenario's draws).
+      if (u.heightError && setup.heightSource === 'measured') heightSd = u.heightSurveySdM;
       if (u.heightError && setup.heightSource === 'default') {
         heightUpM = Math.max(0, Math.min(pond.maxHeightM, setup.heightM * Math.pow(u.unmeasuredHeightGsd, z)) - setup.heightM);
       }
@@ -148,11 +161,26 @@ export function createDrawPrep(u: UncertaintyParams, pond: PondParams, damCount:
         const c = clusters.length;
         clusters.push(buildCluster(grid, group, dams, c));
       }
+      // Second pass for the with-proposed scenario: the same grouping with the designed proposals in.
+      const proposals = members.filter((m) => isDesigned(m) && dams[m.index] !== null && m.fill!.order.length > 0);
+      if (proposals.length === 0) return;
+      for (const m of proposals) designed[m.index] = 1;
+      for (const group of overlapGroups(grid, [...eligible, ...proposals].sort((a, b) => a.index - b.index))) {
+        if (!group.some((m) => designed[m.index] === 1)) continue;
+        for (const m of group) scenarioDams[m.index] = { ...dams[m.index]!, cluster: -1, shares: null };
+        const c = scenarioClusters.length;
+        scenarioClusters.push(buildCluster(grid, group, scenarioDams, c));
+      }
     },
     finish() {
-      return { dams, clusters };
+      return { dams, clusters, scenario: { dams: scenarioDams, clusters: scenarioClusters, designed } };
     },
   };
+}
+
+/** A proposed structure with a design height (as pipeline/scenarios.ts isDesignedProposal). */
+function isDesigned(m: GroupMember): boolean {
+  return m.dam.status === 'proposed' && m.fill !== undefined && m.setup !== undefined && m.setup.heightSource === 'measured';
 }
 
 /** Whether a dam's water can count in the totals in some draw. */
