@@ -8,6 +8,8 @@ import {
   DEFAULT_HEIGHT_SURVEY_SD_M,
   DEFAULT_POWER_P_GSD,
   DEFAULT_RECALL_SD,
+  DEFAULT_RIPARIAN_DISTANCE_SPREAD,
+  RIPARIAN_RISE_FACTORS,
   DEFAULT_SEED,
   DEFAULT_UNMEASURED_HEIGHT_GSD,
   DEM_QUALITY_RMSE_M,
@@ -36,6 +38,11 @@ export interface UncertaintyFlags {
   powerPGsd?: string;
   recall?: string;
   recallSd?: string;
+  /** False with --no-riparian-distance-draws. */
+  riparianDistanceDraws?: boolean;
+  riparianDistanceSpread?: string;
+  /** False with --no-riparian-rise-draws. */
+  riparianRiseDraws?: boolean;
 }
 
 /** Adds the Monte Carlo flags but --seed (estimate and demo). */
@@ -55,7 +62,10 @@ export function addUncertaintyOptions(cmd: Command): Command {
     .option('--no-candidate-draws', 'keep candidates in or out by --min-confidence instead of drawing each with probability = confidence')
     .option('--power-p-gsd <factor>', 'geometric standard deviation of the power-law p below lidar water surfaces (1: none)', `${DEFAULT_POWER_P_GSD}`)
     .option('--recall <share>', "inventory completeness: the share (0–1) of real dams the inventory holds; missed dams are represented by the found ones' ponds (off by default)")
-    .option('--recall-sd <sd>', 'standard deviation of --recall', `${DEFAULT_RECALL_SD}`);
+    .option('--recall-sd <sd>', 'standard deviation of --recall', `${DEFAULT_RECALL_SD}`)
+    .option('--no-riparian-distance-draws', 'keep the influence zone\'s riparian distance at --riparian-distance in every draw')
+    .option('--riparian-distance-spread <share>', 'half-width of the riparian distance\'s triangular distribution, as a share (0–1) of --riparian-distance', `${DEFAULT_RIPARIAN_DISTANCE_SPREAD}`)
+    .option('--no-riparian-rise-draws', `keep the influence zone's riparian rise at --riparian-rise in every draw (else triangular, ${RIPARIAN_RISE_FACTORS.low}–${RIPARIAN_RISE_FACTORS.high} × --riparian-rise)`);
 }
 
 /** Adds --seed (estimate). */
@@ -88,6 +98,9 @@ export function uncertaintyFromFlags(flags: UncertaintyFlags, seed?: number): Un
   if (flags.demErrorRange !== undefined) u.demErrorRangeM = parseLengthM(flags.demErrorRange, '--dem-error-range', { min: 0.01, max: 100_000 });
   if (flags.candidateDraws === false) u.candidates = false;
   if (flags.powerPGsd !== undefined) u.powerPGsd = parseNumber(flags.powerPGsd, '--power-p-gsd', { min: 1, max: 10 });
+  if (flags.riparianDistanceDraws === false) u.riparianDistanceDraws = false;
+  if (flags.riparianDistanceSpread !== undefined) u.riparianDistanceSpread = parseNumber(flags.riparianDistanceSpread, '--riparian-distance-spread', { min: 0, max: 1 });
+  if (flags.riparianRiseDraws === false) u.riparianRiseDraws = false;
   if (flags.recallSd !== undefined) u.recallSd = parseNumber(flags.recallSd, '--recall-sd', { min: 0, max: 0.5 });
   if (flags.recall !== undefined) {
     u.recall = parseNumber(flags.recall, '--recall', { min: 0.01, max: 1 });

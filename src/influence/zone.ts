@@ -46,6 +46,28 @@ export interface InfluenceOptions {
    * riparian cells take the owner of their nearest pond cell. Omit for totals only.
    */
   owner?: Int32Array;
+  /**
+   * Also list the candidate riparian cells of looser limits (influence/
+   * riparian-table.ts): every dry valley-bottom cell within `distanceMaxM`
+   * of its nearest pond cell and at most `riseMaxM` above that pond's level,
+   * with its distance, rise and owner. Both limits must be ≥ the rule's own.
+   */
+  candidates?: { distanceMaxM: number; riseMaxM: number };
+}
+
+/** Candidate riparian cells (see {@link InfluenceOptions.candidates}), in row-major order. */
+export interface RiparianCandidates {
+  count: number;
+  /** Flat index in the grid. */
+  cell: Int32Array;
+  /** Distance to the nearest pond cell centre, m. */
+  distanceM: Float32Array;
+  /** Height above that pond cell's water level, m (may be negative). */
+  riseM: Float64Array;
+  /** Owner id of that pond cell (0 without `owner`). */
+  owner: Int32Array;
+  /** 1 where the cell is riparian under the rule's own limits (the deterministic zone). */
+  inRule: Uint8Array;
 }
 
 /** Result of {@link influenceZone}. */
@@ -62,6 +84,8 @@ export interface InfluenceResult {
   readonly cellOwner?: Int32Array;
   /** With `owner`: areas per owner id (index = id; index 0 collects pond cells without owner), m². */
   readonly byOwner?: { readonly inundatedAreaM2: Float64Array; readonly riparianAreaM2: Float64Array };
+  /** With `candidates`: the candidate riparian cells. */
+  readonly candidates?: RiparianCandidates;
 }
 
 /**
@@ -107,12 +131,19 @@ export function influenceZone(grid: Grid, waterLevelM: Float32Array, options: In
     owner !== undefined
       ? { inundatedAreaM2: new Float64Array(ownerMax + 1), riparianAreaM2: new Float64Array(ownerMax + 1) }
       : undefined;
-  if (r1 < 0) return { classes, inundatedAreaM2: 0, riparianAreaM2: 0, influenceAreaM2: 0, cellOwner, byOwner };
+  const collect = options.candidates;
+  if (collect !== undefined && !(collect.distanceMaxM >= distanceM && collect.riseMaxM >= riseM)) {
+    throw new Error(`candidate limits (${collect.distanceMaxM} m, ${collect.riseMaxM} m) must be at least the rule's (${distanceM} m, ${riseM} m)`);
+  }
+  let cand: RiparianCandidates | undefined = collect !== undefined ? emptyCandidates(1024) : undefined;
+  if (r1 < 0) return { classes, inundatedAreaM2: 0, riparianAreaM2: 0, influenceAreaM2: 0, cellOwner, byOwner, ...(cand ? { candidates: cand } : {}) };
+  const reachM = collect !== undefined ? collect.distanceMaxM : distanceM;
+  const riseMaxM = collect !== undefined ? collect.riseMaxM : riseM;
 
   let minWidthM = Infinity;
   for (let r = 0; r < height; r++) minWidthM = Math.min(minWidthM, grid.cellWidthM[r] ?? Infinity);
-  const padCols = Math.ceil(distanceM / minWidthM) + 1;
-  const padRows = Math.ceil(distanceM / grid.cellHeightM) + 1;
+  const padCols = Math.ceil(reachM / minWidthM) + 1;
+  const padRows = Math.ceil(reachM / grid.cellHeightM) + 1;
   r0 = Math.max(0, r0 - padRows);
   r1 = Math.min(height - 1, r1 + padRows);
   c0 = Math.max(0, c0 - padCols);
@@ -148,13 +179,25 @@ export function influenceZone(grid: Grid, waterLevelM: Float32Array, options: In
         }
         continue;
       }
-      if (!((dist[wi] ?? Infinity) <= distanceM)) continue;
+      const dw = dist[wi] ?? Infinity;
+      if (!(dw <= reachM)) continue;
       if (valleyBottom !== undefined && valleyBottom[i] !== 1) continue;
       const s = nearest[wi] ?? 0;
       const sr = ((s / ww) | 0) + r0;
       const seed = sr * width + (s % ww) + c0;
       const zi = z[i] ?? NaN;
-      if (!(zi <= (waterLevelM[seed] ?? NaN) + riseM)) continue; // NaN (NoData) fails
+      const levelM = waterLevelM[seed] ?? NaN;
+      const inRule = dw <= distanceM && zi <= levelM + riseM; // NaN (NoData) fails
+      if (cand !== undefined && zi - levelM <= riseMaxM) {
+        if (cand.count === cand.cell.length) cand = growCandidates(cand);
+        const j = cand.count++;
+        cand.cell[j] = i;
+        cand.distanceM[j] = dw;
+        cand.riseM[j] = zi - levelM;
+        cand.owner[j] = owner !== undefined ? (owner[seed] ?? 0) : 0;
+        cand.inRule[j] = inRule ? 1 : 0;
+      }
+      if (!inRule) continue;
       classes[i] = INFLUENCE_RIPARIAN;
       riparianAreaM2 += area;
       if (owner !== undefined && cellOwner !== undefined && byOwner !== undefined) {
@@ -171,5 +214,29 @@ export function influenceZone(grid: Grid, waterLevelM: Float32Array, options: In
     influenceAreaM2: inundatedAreaM2 + riparianAreaM2,
     cellOwner,
     byOwner,
+    ...(cand ? { candidates: cand } : {}),
   };
+}
+
+function emptyCandidates(capacity: number): RiparianCandidates {
+  return {
+    count: 0,
+    cell: new Int32Array(capacity),
+    distanceM: new Float32Array(capacity),
+    riseM: new Float64Array(capacity),
+    owner: new Int32Array(capacity),
+    inRule: new Uint8Array(capacity),
+  };
+}
+
+/** The same list with twice the room. */
+function growCandidates(c: RiparianCandidates): RiparianCandidates {
+  const out = emptyCandidates(c.cell.length * 2);
+  out.count = c.count;
+  out.cell.set(c.cell);
+  out.distanceM.set(c.distanceM);
+  out.riseM.set(c.riseM);
+  out.owner.set(c.owner);
+  out.inRule.set(c.inRule);
+  return out;
 }

@@ -33,6 +33,9 @@ export const DAM_BAND_COLUMNS: Readonly<Record<string, BandColumn>> = Object.fre
   standalone_area_m2: { band: 'standalone_area_m2', convert: same, digits: 2 },
   standalone_volume_m3: { band: 'standalone_volume_m3', convert: same, digits: 3 },
   standalone_volume_acre_ft: { band: 'standalone_volume_m3', convert: m3ToAcreFeet, digits: 6 },
+  influence_area_m2: { band: 'influence_area_m2', convert: same, digits: 2 },
+  influence_area_ha: { band: 'influence_area_m2', convert: m2ToHectares, digits: 5 },
+  influence_area_acres: { band: 'influence_area_m2', convert: m2ToAcres, digits: 5 },
 });
 
 const STATS = ['p05', 'p50', 'p95', 'mean'] as const;

@@ -21,6 +21,9 @@
  * - Totals rows fill the totals' figures; dam rows the dam's own water in
  *   that draw (`volume_m3`, `area_m2`: 0 when the dam does not count).
  *   Other cells are empty.
+ * - With the influence stage, a last column `influence_area_m2` (m²): the
+ *   totals', each watershed's and each dam's influence area in that draw
+ *   (a dam's is 0 when it does not count); empty on scenario rows.
  * - Numbers are written in full (shortest round-trip form), so a totals
  *   row equals the sum of its dam rows in file order exactly (plus
  *   `missing_storage_m3` / `missing_area_m2` when --recall is on).
@@ -43,12 +46,19 @@ export interface DrawsTable {
   watersheds?: { ids: readonly string[]; figures: readonly Record<string, Float64Array>[] };
   /** Scenario rows (pipeline/scenario-bands.ts): per-draw storage_m3 (m³) and inundated_area_m2 (m²) of each scenario. */
   scenarios?: { existing: ScenarioSeries; with_proposed: ScenarioSeries };
+  /**
+   * Influence areas per draw, m² (pipeline/influence-draws.ts): a last
+   * column `influence_area_m2` filled on the totals row, the watershed rows
+   * (rows as in `watersheds`) and the dam rows (dam-major); empty on scenario rows.
+   */
+  influence?: { total: Float64Array; watersheds?: readonly Float64Array[]; dams: Float64Array };
 }
 
 /** The file's text. */
 export function drawsCsv(t: DrawsTable): string {
   const totalNames = Object.keys(t.totals);
-  const header = ['draw', 'scope', 'id', ...totalNames.slice(0, 3), 'volume_m3', 'area_m2', ...totalNames.slice(3)];
+  const inf = t.influence;
+  const header = ['draw', 'scope', 'id', ...totalNames.slice(0, 3), 'volume_m3', 'area_m2', ...totalNames.slice(3), ...(inf ? ['influence_area_m2'] : [])];
   const rows = t.damRows ?? t.damIds.map((_, d) => d);
   const ids = t.damIds.map((id) => csvField(id));
   const emptyTotals = ','.repeat(3);
@@ -58,22 +68,23 @@ export function drawsCsv(t: DrawsTable): string {
   for (let k = 0; k < N; k++) {
     const head = totalNames.slice(0, 3).map((n) => String(t.totals[n]![k]!));
     const tail = totalNames.slice(3).map((n) => String(t.totals[n]![k]!));
-    lines.push(`${k},total,,${head.join(',')},,${tail.length > 0 ? ',' + tail.join(',') : ''}`);
+    lines.push(`${k},total,,${head.join(',')},,${tail.length > 0 ? ',' + tail.join(',') : ''}${inf ? ',' + String(inf.total[k]!) : ''}`);
     if (t.watersheds) {
       t.watersheds.ids.forEach((id, w) => {
         const f = t.watersheds!.figures[w]!;
         const cells = totalNames.slice(0, 3).map((n) => (f[n] ? String(f[n][k]!) : ''));
-        lines.push(`${k},watershed,${csvField(id)},${cells.join(',')},,${emptyTail}`);
+        const wInf = inf?.watersheds?.[w];
+        lines.push(`${k},watershed,${csvField(id)},${cells.join(',')},,${emptyTail}${inf ? ',' + (wInf ? String(wInf[k]!) : '') : ''}`);
       });
     }
     if (t.scenarios) {
       for (const id of ['existing', 'with_proposed'] as const) {
         const f = t.scenarios[id];
-        lines.push(`${k},scenario,${id},${String(f.storage_m3[k]!)},${String(f.inundated_area_m2[k]!)},,,${emptyTail}`);
+        lines.push(`${k},scenario,${id},${String(f.storage_m3[k]!)},${String(f.inundated_area_m2[k]!)},,,${emptyTail}${inf ? ',' : ''}`);
       }
     }
     for (const d of rows) {
-      lines.push(`${k},dam,${ids[d]!}${emptyTotals},${String(t.damVolumeM3[d * N + k]!)},${String(t.damAreaM2[d * N + k]!)}${emptyTail}`);
+      lines.push(`${k},dam,${ids[d]!}${emptyTotals},${String(t.damVolumeM3[d * N + k]!)},${String(t.damAreaM2[d * N + k]!)}${emptyTail}${inf ? ',' + String(inf.dams[d * N + k]!) : ''}`);
     }
   }
   return lines.join('\n') + '\n';

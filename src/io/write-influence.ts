@@ -80,6 +80,9 @@ const BANDED: Readonly<Record<string, string>> = {
   inundated_area_acres: 'inundated_area_acres',
   storage_m3: 'storage_m3',
   storage_acre_ft: 'storage_acre_ft',
+  influence_area_m2: 'influence_area_m2',
+  influence_area_ha: 'influence_area_ha',
+  influence_area_acres: 'influence_area_acres',
 };
 const STATS = ['p05', 'p50', 'p95', 'mean'] as const;
 

@@ -13,6 +13,7 @@ import { tallyWatersheds, type InfluenceTotals, type WatershedRow, type Watershe
 import { watershedBands, watershedDraws, type WatershedDraws } from '../tally/watershed-bands.js';
 import type { EstimateResult } from './estimate.js';
 import type { RunDraws } from './draws.js';
+import type { RiparianReach } from './influence-draws.js';
 import { runInfluenceStage, type InfluenceOutcome, type InfluenceRunParams } from './influence-stage.js';
 import type { InputRecord } from './result.js';
 
@@ -86,7 +87,15 @@ export interface InfluenceRun {
  * influence area and tallies the rows. The stage's warnings are added to
  * `result.warnings`.
  */
-export async function runInfluence(dem: DemSource, damInputs: readonly DamInput[], result: EstimateResult, params: InfluenceRunParams, layers: InfluenceLayers): Promise<InfluenceRun> {
+export async function runInfluence(
+  dem: DemSource,
+  damInputs: readonly DamInput[],
+  result: EstimateResult,
+  params: InfluenceRunParams,
+  layers: InfluenceLayers,
+  /** The limits the draws can take (pipeline/influence-draws.ts `riparianReachOf`): tables for influence bands. */
+  reach?: RiparianReach,
+): Promise<InfluenceRun> {
   const outcome = await runInfluenceStage({
     dem,
     dams: result.dams,
@@ -95,6 +104,7 @@ export async function runInfluence(dem: DemSource, damInputs: readonly DamInput[
     params,
     watersheds: layers.watersheds,
     valleyBottom: layers.valleyBottom,
+    reach,
   });
   const units = outcome.units.map((u, k) => ({
     ...u,

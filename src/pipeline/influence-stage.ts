@@ -34,6 +34,8 @@ import { DEFAULT_STREAM_THRESHOLD_M2, type StreamLinks } from '../hydro/streams.
 import { analyseTerrain } from '../hydro/terrain.js';
 import { VALLEY_BOTTOM_DEFAULTS, type ValleyBottomOptions } from '../hydro/valley-bottom.js';
 import { DEFAULT_RIPARIAN_DISTANCE_M, DEFAULT_RIPARIAN_RISE_M, influenceZone } from '../influence/zone.js';
+import { buildRiparianTables, type RiparianTables } from '../influence/riparian-table.js';
+import type { RiparianReach } from './influence-draws.js';
 import type { DamInput } from '../inventory.js';
 import type { AreaLayer } from '../io/area-layer.js';
 import { cellMetrics } from '../io/crs.js';
@@ -117,8 +119,10 @@ export interface InfluenceOutcome {
   classOwner: Int32Array;
   streams: StreamLine[];
   warnings: Warning[];
-  /** Wall time of each step, s (for the bench). */
-  timings: { readS: number; terrainS: number; watershedsS: number; influenceS: number };
+  /** Per-dam riparian area tables over the draws' limits (owner id = dam row + 1; influence/riparian-table.ts), or null without `reach`. */
+  riparianTables: RiparianTables | null;
+  /** Wall time of each step, s (for the bench); riparianTableS is the part of influenceS that builds the tables. */
+  timings: { readS: number; terrainS: number; watershedsS: number; influenceS: number; riparianTableS?: number };
 }
 
 /** Inputs of the stage besides the estimate's result. */
@@ -131,6 +135,8 @@ export interface InfluenceStageInputs {
   params: InfluenceRunParams;
   watersheds: AreaLayer | null;
   valleyBottom: AreaLayer | null;
+  /** Limits the draws can take: list candidate riparian cells within them and build the tables (pipeline/influence-draws.ts). */
+  reach?: RiparianReach | undefined;
 }
 
 /** Runs the stage (see the file comment). */
@@ -179,7 +185,22 @@ export async function runInfluenceStage(inp: InfluenceStageInputs): Promise<Infl
     riseM: params.riparianRiseM,
     valleyBottom: valley,
     owner: water.owner,
+    ...(inp.reach ? { candidates: { distanceMaxM: inp.reach.distanceMaxM, riseMaxM: inp.reach.riseMaxM } } : {}),
   });
+  const tableStart = performance.now();
+  const riparianTables =
+    inp.reach && zone.candidates
+      ? buildRiparianTables({
+          candidates: zone.candidates,
+          width: grid.width,
+          cellAreaM2OfRow: grid.cellAreaM2,
+          owners: inp.dams.length + 1,
+          distanceM: params.riparianDistanceM,
+          riseM: params.riparianRiseM,
+          ...inp.reach,
+        })
+      : null;
+  const riparianTableS = (performance.now() - tableStart) / 1000;
   const damRiparianM2 = new Float64Array(inp.dams.length);
   const byOwner = zone.byOwner!;
   for (let d = 0; d < inp.dams.length; d++) damRiparianM2[d] = byOwner.riparianAreaM2[d + 1] ?? 0;
@@ -208,7 +229,8 @@ export async function runInfluenceStage(inp: InfluenceStageInputs): Promise<Infl
     classOwner: zone.cellOwner!,
     streams,
     warnings,
-    timings: { readS, terrainS, watershedsS, influenceS },
+    riparianTables,
+    timings: { readS, terrainS, watershedsS, influenceS, ...(inp.reach ? { riparianTableS } : {}) },
   };
 }
 
@@ -253,7 +275,7 @@ function analysisBox(inp: InfluenceStageInputs): CellBox {
   const top = cellMetrics(dem.crs, t, 0, 1);
   const bottom = cellMetrics(dem.crs, t, dem.height - 1, 1);
   const cellM = Math.min(top.cellWidthM[0]!, bottom.cellWidthM[0]!, top.cellHeightM);
-  const pad = Math.ceil(inp.params.riparianDistanceM / cellM) + 2;
+  const pad = Math.ceil(Math.max(inp.params.riparianDistanceM, inp.reach?.distanceMaxM ?? 0) / cellM) + 2;
   const grown = clipBox({ col0: wet.col0 - pad, row0: wet.row0 - pad, col1: wet.col1 + pad, row1: wet.row1 + pad }, dem.width, dem.height);
   return grown ? unionBox(polygons, grown) : polygons;
 }

@@ -16,6 +16,7 @@ import { buildSummary, type Summary } from './summary.js';
 import { TOOL_VERSION } from './version.js';
 import { drawBands } from './draws.js';
 import { addScenarioBands } from './scenario-bands.js';
+import { addInfluenceBands, riparianReachOf } from './influence-draws.js';
 import { DRAWS_FILE } from '../uncertainty/describe.js';
 import { defaultUncertaintyParams } from '../uncertainty/params.js';
 import { defaultInfluenceParams } from './influence-stage.js';
@@ -73,10 +74,12 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
     const shade = collectHillshade(loaded.dem, loaded.dams, maxReachM + maxCrestLengthM / 2 + snapRadiusM);
     const result = await estimatePonds(shade.source, loaded.dams, options.params, options.progress, water);
     // Influence zone, valley bottom and watersheds (influence-stage.ts): before the draws, which resample missed dams by watershed.
-    const influence = options.params.influence && layers ? await runInfluence(loaded.dem, loaded.dams, result, options.params.influence, layers) : null;
+    const influence = options.params.influence && layers ? await runInfluence(loaded.dem, loaded.dams, result, options.params.influence, layers, riparianReachOf(options.params)) : null;
     const drawsStart = performance.now();
     const draws = drawBands(result, options.params, influence ? { recallGroups: recallGroupsOf(influence, result) } : {});
     if (draws && influence) addWatershedBands(influence, draws);
+    // Influence-area bands from the stage's riparian tables (influence-draws.ts).
+    const influenceDraws = draws && influence && options.params.uncertainty ? addInfluenceBands(influence, draws, result, options.params.uncertainty) : null;
     // The with-proposed scenario in every draw (bands on summary.json's scenarios).
     const scenarioDraws = addScenarioBands(result, draws);
     const drawsS = (performance.now() - drawsStart) / 1000;
@@ -101,7 +104,7 @@ export async function runEstimate(options: RunOptions): Promise<{ summary: Summa
       if (draws) {
         const o = draws.outcome;
         const watersheds = influence?.draws ? { ids: influence.tally.rows.map((r) => r.id), figures: influence.draws } : undefined;
-        await writeDrawsCsv(join(dir, DRAWS_FILE), { draws: o.draws, damIds: result.dams.map((d) => d.id), totals: o.totals, damVolumeM3: o.damVolumeM3, damAreaM2: o.damAreaM2, ...(watersheds ? { watersheds } : {}), ...(scenarioDraws ? { scenarios: scenarioDraws } : {}) });
+        await writeDrawsCsv(join(dir, DRAWS_FILE), { draws: o.draws, damIds: result.dams.map((d) => d.id), totals: o.totals, damVolumeM3: o.damVolumeM3, damAreaM2: o.damAreaM2, ...(watersheds ? { watersheds } : {}), ...(scenarioDraws ? { scenarios: scenarioDraws } : {}), ...(influenceDraws ? { influence: influenceDraws } : {}) });
       }
       if (influence) await writeInfluenceFiles(dir, { outcome: influence.outcome, rows: influence.tally.rows, dams: result.dams, demCrs: loaded.dem.crs });
       // Last, so it reads the files above: report-map.json and report.html.

@@ -55,6 +55,9 @@ export function uncertaintyParameters(u: UncertaintyParams): Record<string, numb
     power_p_gsd: u.powerPGsd,
     recall: u.recall === null ? 'off' : u.recall,
     recall_sd: u.recall === null ? 'off' : u.recallSd,
+    riparian_distance_draws: u.riparianDistanceDraws ? 'on' : 'off',
+    riparian_distance_spread: u.riparianDistanceSpread,
+    riparian_rise_draws: u.riparianRiseDraws ? 'on' : 'off',
   };
 }
 

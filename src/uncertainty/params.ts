@@ -83,6 +83,25 @@ export const DEFAULT_RECALL_SD = 0.05;
  */
 export const FLOOD_TOP_SIGMAS = 4.5;
 
+/**
+ * Half-width of the riparian distance's triangular distribution as a share
+ * of the run's distance: 0.5, so D ~ Triangular(25, 50, 75) m around the
+ * default 50 m. A project choice: Lowry (1993) describes the steep
+ * water-table gradient as lying within about 50 m of the pond (from memory),
+ * a figure read from a few transects, not a sharp limit; ±50 % spans the
+ * plausible readings of it.
+ */
+export const DEFAULT_RIPARIAN_DISTANCE_SPREAD = 0.5;
+
+/**
+ * The riparian rise's triangular distribution relative to the run's rise:
+ * low, mode and high factors 0.9, 1.0, 1.2, i.e. Triangular(0.9, 1.0,
+ * 1.2) m around the default 1.0 m: the summer water-table declines of about
+ * 0.9–1.2 m that dams prevented (Westbrook, Cooper & Baker 2006; range from
+ * memory), with the mode at the run's value (a project choice).
+ */
+export const RIPARIAN_RISE_FACTORS = Object.freeze({ low: 0.9, mode: 1.0, high: 1.2 });
+
 /** Monte Carlo settings and the switches of each uncertainty source. */
 export interface UncertaintyParams {
   /** Number of draws; 0 runs the deterministic estimate only (no bands). */
@@ -111,6 +130,12 @@ export interface UncertaintyParams {
   recall: number | null;
   /** Standard deviation of the recall. */
   recallSd: number;
+  /** Draw the riparian distance D of the influence zone (uncertainty/riparian-draws.ts). */
+  riparianDistanceDraws: boolean;
+  /** Half-width of D's triangular distribution as a share of the run's D (0–1). */
+  riparianDistanceSpread: number;
+  /** Draw the riparian rise Δz of the influence zone. */
+  riparianRiseDraws: boolean;
 }
 
 /** Uncertainty parameters with every default filled in. */
@@ -129,10 +154,13 @@ export function defaultUncertaintyParams(): UncertaintyParams {
     powerPGsd: DEFAULT_POWER_P_GSD,
     recall: null,
     recallSd: DEFAULT_RECALL_SD,
+    riparianDistanceDraws: true,
+    riparianDistanceSpread: DEFAULT_RIPARIAN_DISTANCE_SPREAD,
+    riparianRiseDraws: true,
   };
 }
 
 /** Every source switched off: each draw equals the deterministic estimate (a check, and a baseline). */
 export function zeroVarianceParams(base: UncertaintyParams): UncertaintyParams {
-  return { ...base, heightError: false, demError: false, candidates: false, powerPGsd: 1, recall: null };
+  return { ...base, heightError: false, demError: false, candidates: false, powerPGsd: 1, recall: null, riparianDistanceDraws: false, riparianRiseDraws: false };
 }
