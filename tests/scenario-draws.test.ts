@@ -68,9 +68,9 @@ const scene = (): DamInput[] => [
   makeDam({ id: 'solo', index: 2, lines: across(150), heightM: 0.4 }),
 ];
 
-async function run(u: Partial<UncertaintyParams>) {
+async function run(u: Partial<UncertaintyParams>, dams: DamInput[] = scene()) {
   const p = runParams(u);
-  const result = await estimatePonds(memoryDem(grid), scene(), p);
+  const result = await estimatePonds(memoryDem(grid), dams, p);
   const draws = drawBands(result, p);
   if (!draws) throw new Error('no draws');
   const scenario = addScenarioBands(result, draws);
@@ -102,6 +102,16 @@ describe('with-proposed scenario per draw', () => {
     expect(s.added.bands!.storage_m3!.p50).toBeCloseTo(s.added.storage_m3, 9);
     // The existing scenario's draws are the totals' draws.
     expect(scenario.existing.storage_m3).toEqual(draws.outcome.totals.storage_m3);
+  });
+
+  it('zero variance without proposals: with_proposed repeats the deterministic scenario in every draw', async () => {
+    const { result, scenario } = await run({ draws: 10, seed: 3 }, scene().filter((d) => d.status !== 'proposed'));
+    const s = result.scenarios!;
+    expect(s.with_proposed.proposed_counted).toBe(0);
+    for (let k = 0; k < 10; k++) {
+      expect(scenario.with_proposed.storage_m3[k]).toBe(s.with_proposed.storage_m3);
+      expect(scenario.with_proposed.inundated_area_m2[k]).toBe(s.with_proposed.inundated_area_m2);
+    }
   });
 
   it('with survey error on the heights: with_proposed − existing equals added in every draw, and the existing draws are the totals', async () => {

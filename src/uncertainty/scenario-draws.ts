@@ -71,6 +71,23 @@ export function runScenarioDraws(args: {
   const volume = Float64Array.from(outcome.damVolumeM3);
   const area = Float64Array.from(outcome.damAreaM2);
 
+  // Existing dams no proposed pond reaches: where a draw took the dam's deterministic figures, take its
+  // deterministic with-proposed share (the same water; the two deterministic records may differ in the
+  // last bits, pipeline/scenarios.ts keeps shares before the figures are put on their step).
+  for (let d = 0; d < D; d++) {
+    const det = shares[d] ?? null;
+    if (!det || designed[d] === 1 || (sc && sc.dams[d] !== null)) continue;
+    const dv = dams[d]!.volume_m3;
+    const da = dams[d]!.area_m2;
+    for (let k = 0; k < N; k++) {
+      const at = d * N + k;
+      if (volume[at] === dv && area[at] === da) {
+        volume[at] = det.volumeM3;
+        area[at] = det.areaM2;
+      }
+    }
+  }
+
   // Proposed ponds that reach no other pond in any draw: their own pond.
   for (let d = 0; d < D; d++) {
     const inp = inputs.dams[d];
