@@ -95,9 +95,9 @@ export interface RunUncertainty {
 
 /** Existing and existing-plus-proposed water surfaces (summary.json `scenarios`). */
 export interface RunScenarios {
-  existing: { damsCounted: number; inundatedAreaM2: number; storageM3: number };
-  withProposed: { damsCounted: number; proposedCounted: number; inundatedAreaM2: number; storageM3: number };
-  added: { inundatedAreaM2: number; storageM3: number };
+  existing: { damsCounted: number; inundatedAreaM2: number; storageM3: number; bands?: Bands | null };
+  withProposed: { damsCounted: number; proposedCounted: number; inundatedAreaM2: number; storageM3: number; bands?: Bands | null };
+  added: { inundatedAreaM2: number; storageM3: number; bands?: Bands | null };
   drownedByProposed: { id: string; drownedBy: string; volumeExistingM3: number; volumeWithProposedM3: number; index: number }[];
   proposedLeftOut: { id: string; reason: string }[];
 }
@@ -290,9 +290,9 @@ function scenariosOf(v: unknown): RunScenarios | null {
   if (figures.some((f) => f === null)) return null;
   const [eDams, eArea, eStorage, wDams, wProposed, wArea, wStorage, aArea, aStorage] = figures as number[];
   return {
-    existing: { damsCounted: eDams!, inundatedAreaM2: eArea!, storageM3: eStorage! },
-    withProposed: { damsCounted: wDams!, proposedCounted: wProposed!, inundatedAreaM2: wArea!, storageM3: wStorage! },
-    added: { inundatedAreaM2: aArea!, storageM3: aStorage! },
+    existing: { damsCounted: eDams!, inundatedAreaM2: eArea!, storageM3: eStorage!, bands: bands(e['bands']) },
+    withProposed: { damsCounted: wDams!, proposedCounted: wProposed!, inundatedAreaM2: wArea!, storageM3: wStorage!, bands: bands(w['bands']) },
+    added: { inundatedAreaM2: aArea!, storageM3: aStorage!, bands: bands(a['bands']) },
     drownedByProposed: (Array.isArray(s['drowned_by_proposed']) ? (s['drowned_by_proposed'] as unknown[]) : []).flatMap((item, index) => {
       const r = obj(item);
       const id = r ? str(r['id']) : null;

@@ -41,7 +41,9 @@ export interface ReportView {
   /** A sentence on where the bands come from, when the run has them. */
   bandNote: string | null;
   scenarios: {
-    rows: { label: string; dams: string; inundated: string; storage: string }[];
+    rows: { label: string; dams: string; inundated: string; storage: string; band?: string | null }[];
+    /** True when the run has per-draw scenario figures: a 90 % band column on storage. */
+    hasBands: boolean;
     drowned: string[];
     leftOut: { id: string; reason: string }[];
   } | null;
@@ -190,6 +192,7 @@ export function buildView(input: ReportInput): ReportView {
               dams: fig(r.dams, `scenarios.${r.key}.dams_counted`, 'count'),
               inundated: `${fig(r.f.inundatedAreaM2, `scenarios.${r.key}.inundated_area_m2`, 'ha')} <span class="us">${fig(r.f.inundatedAreaM2, `scenarios.${r.key}.inundated_area_m2`, 'acres')}</span>`,
               storage: `${fig(r.f.storageM3, `scenarios.${r.key}.storage_m3`, 'm3')} <span class="us">${fig(r.f.storageM3, `scenarios.${r.key}.storage_m3`, 'acre_ft')}</span>`,
+              band: bandText(r.f.bands?.['storage_m3'], `scenarios.${r.key}.bands.storage_m3`, 'm3'),
             }))
             .concat([
               {
@@ -197,8 +200,10 @@ export function buildView(input: ReportInput): ReportView {
                 dams: fig(sc.withProposed.proposedCounted, 'scenarios.with_proposed.proposed_counted', 'count'),
                 inundated: `${fig(sc.added.inundatedAreaM2, 'scenarios.added.inundated_area_m2', 'ha')} <span class="us">${fig(sc.added.inundatedAreaM2, 'scenarios.added.inundated_area_m2', 'acres')}</span>`,
                 storage: `${fig(sc.added.storageM3, 'scenarios.added.storage_m3', 'm3')} <span class="us">${fig(sc.added.storageM3, 'scenarios.added.storage_m3', 'acre_ft')}</span>`,
+                band: bandText(sc.added.bands?.['storage_m3'], 'scenarios.added.bands.storage_m3', 'm3'),
               },
             ]),
+          hasBands: Boolean(sc.withProposed.bands?.['storage_m3']),
           drowned: sc.drownedByProposed.map(
             (d) =>
               `${escape(d.id)} would stand under the pond of proposed ${escape(d.drownedBy)}: the water it holds goes from ${figU(d.volumeExistingM3, `scenarios.drowned_by_proposed[${d.index}].volume_existing_m3`, 'm3')} to ${figU(d.volumeWithProposedM3, `scenarios.drowned_by_proposed[${d.index}].volume_with_proposed_m3`, 'm3')}.`,
