@@ -63,7 +63,7 @@ export function compareLines(c: Comparison): string {
   for (const r of c.runs) {
     const p = r.proposed;
     if (p.available && p.added && p.with_proposed && p.with_proposed.proposed_counted > 0) {
-      lines.push(`  ${r.label}: ${p.with_proposed.proposed_counted} proposed structures would add ${sign(p.added.storage_m3)} m³${p.drowned_by_proposed.length > 0 ? `, drowning ${p.drowned_by_proposed.map((d) => d.id).join(', ')}` : ''}`);
+      lines.push(`  ${r.label}: ${p.with_proposed.proposed_counted} proposed structures would add ${sign(p.added.storage_m3)} m³${p.added.bands?.['storage_m3'] ? ` (band ${sign(p.added.bands['storage_m3'].p05)} to ${sign(p.added.bands['storage_m3'].p95)} m³, ${p.added.band_method}: ${p.added.detectable ? 'detectable' : 'not detectable'})` : ''}${p.drowned_by_proposed.length > 0 ? `, drowning ${p.drowned_by_proposed.map((d) => d.id).join(', ')}` : ''}`);
     }
   }
   return lines.join('\n') + '\n';
