@@ -10,6 +10,7 @@
  * this returns, and the CLI reports progress through the callback.
  */
 import { InputError, type Warning } from '../errors.js';
+import { onStep } from './figure-step.js';
 import type { Grid } from '../grid/grid.js';
 import { polygoniseCells } from '../grid/polygonise.js';
 import { rasteriseLines } from '../grid/rasterise-line.js';
@@ -440,16 +441,6 @@ function emptyResult(dam: DamInput, minConfidence: number): DamResult {
 }
 
 /** Totals are the sums of the per-dam rows, in row order, so they agree exactly. */
-/**
- * Step of every per-dam area and volume, m² or m³: 2^-20 (about 1e-6). Sums
- * of whole multiples of a power of two are exact in any order while they stay
- * below 2^53 steps (here 8.6e9 m³), so totals, watershed rows and any other
- * grouping of the dams add up to the same double, not merely to within
- * rounding. The step is far below any figure's meaning.
- */
-export const FIGURE_STEP = 2 ** -20;
-
-const onStep = (v: number): number => Math.round(v / FIGURE_STEP) * FIGURE_STEP;
 
 /** Puts a dam's additive figures on FIGURE_STEP; its volume stays the exact sum of its parts. */
 function quantiseFigures(d: DamResult): void {

@@ -18,6 +18,7 @@ import type { PondFill } from '../ponds/fill.js';
 import type { DamStatus } from '../inventory.js';
 import type { DamResult, Totals } from './result.js';
 import type { Bands } from '../uncertainty/bands.js';
+import { onStep } from './figure-step.js';
 
 /** Storage and inundated area of one scenario. */
 export interface ScenarioFigures {
@@ -122,7 +123,8 @@ export class ScenarioTally {
       }
       if (!(d.estimated && (d.in_totals || isDesignedProposal(d)))) return;
       if (isDesignedProposal(d)) proposed++;
-      const row: ScenarioDam = { id: d.id, status: d.status, area_m2: this.area[k]!, volume_m3: this.volume[k]!, drowned_by: this.drownedBy[k] ?? null };
+      // On the same step as the dams' own figures, so a run without proposals adds exactly nothing.
+      const row: ScenarioDam = { id: d.id, status: d.status, area_m2: onStep(this.area[k]!), volume_m3: onStep(this.volume[k]!), drowned_by: this.drownedBy[k] ?? null };
       rows.push(row);
       area += row.area_m2;
       volume += row.volume_m3;
