@@ -10,7 +10,7 @@ import type { ReportMap } from './map-file.js';
 import { buildMapFigure, type MapFigure, type MapLayers } from './map-svg.js';
 import { methodsOf, type MethodsView } from './methods.js';
 import { HEIGHT_SOURCE_STYLE, LIMIT_STYLE, STATUS_STYLE } from './palette.js';
-import type { Band, RunSummary } from './run-data.js';
+import type { Band, RunSummary, RunTotals } from './run-data.js';
 import { legendSwatch } from './svg.js';
 
 /** Everything a report is rendered from. */
@@ -166,7 +166,7 @@ export function buildView(input: ReportInput): ReportView {
 
   const u = summary.uncertainty;
   const bandNote = t.bands
-    ? `Bands run from the 5th to the 95th percentile${u ? ` of ${formatNumber(u.draws, 0)} Monte Carlo draws${u.seed !== null ? ` (seed ${u.seed})` : ''}` : ' of the run’s Monte Carlo draws'}; see Methods for their sources.`
+    ? `Bands run from the 5th to the 95th percentile${u ? ` of ${formatNumber(u.draws, 0)} Monte Carlo draws${u.seed !== null ? ` (seed ${u.seed})` : ''}` : ' of the run’s Monte Carlo draws'}; see Methods for their sources.${skewNote(t)}`
     : null;
   const uncertainty = u
     ? {
@@ -380,4 +380,16 @@ function watershedView(summary: RunSummary): NonNullable<ReportView['watersheds'
 
 function slug(s: string): string {
   return s.replace(/[^A-Za-z0-9_-]+/g, '_');
+}
+
+/**
+ * Why the estimate can sit low in its band: the estimate takes each unmeasured
+ * dam at the typical (median) height, and a pond's volume grows about with the
+ * cube of its height, so the draws' storage is skewed upwards. Said only when
+ * the estimate lies below the band's median.
+ */
+function skewNote(t: RunTotals): string {
+  const p50 = t.bands?.['storage_m3']?.p50;
+  if (p50 === undefined || !(t.storageM3 < p50)) return '';
+  return ' The storage estimate lies below the band’s median: it takes unmeasured dams at the typical height, and a pond’s volume grows about with the cube of its height, so taller draws add more than shorter ones take away.';
 }
