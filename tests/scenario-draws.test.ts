@@ -6,10 +6,6 @@
  * levels, and through draws.csv as `pondage compare` reads it.
  */
 import { describe, expect, it } from 'vitest';
-import { makeGrid, type Grid } from '../src/grid/grid.js';
-import { windowTransform } from '../src/grid/transform.js';
-import { crsFromEpsg } from '../src/io/crs.js';
-import type { DemSource } from '../src/io/dem.js';
 import type { DamInput } from '../src/inventory.js';
 import { drawsCsv } from '../src/io/draws-csv.js';
 import { parseDrawsCsv } from '../src/io/compare-inputs.js';
@@ -23,30 +19,8 @@ import { combinePonds } from '../src/ponds/combine.js';
 import { pondStats } from '../src/ponds/stage-storage.js';
 import { defaultUncertaintyParams, zeroVarianceParams, type UncertaintyParams } from '../src/uncertainty/params.js';
 import { fillDam, makeDam, vValley } from './helpers/synthetic.js';
+import { memoryDem } from './helpers/memory-dem.js';
 
-/** An in-memory DEM (projected, metres) over a grid, read window by window. */
-function memoryDem(grid: Grid): DemSource {
-  return {
-    width: grid.width,
-    height: grid.height,
-    transform: grid.transform,
-    crs: crsFromEpsg(32612),
-    zUnit: 'metre',
-    zUnitSource: 'geokey',
-    files: [],
-    async readWindow(col0, row0, cols, rows) {
-      const c0 = Math.max(0, col0);
-      const r0 = Math.max(0, row0);
-      const c1 = Math.min(grid.width, col0 + cols);
-      const r1 = Math.min(grid.height, row0 + rows);
-      const w = c1 - c0;
-      const z = new Float32Array(w * (r1 - r0));
-      for (let r = r0; r < r1; r++) z.set(grid.z.subarray(r * grid.width + c0, r * grid.width + c1), (r - r0) * w);
-      return makeGrid({ width: w, height: r1 - r0, z, transform: windowTransform(grid.transform, c0, r0), colOffset: c0, rowOffset: r0 });
-    },
-    async close() {},
-  };
-}
 
 function runParams(u: Partial<UncertaintyParams>): EstimateParams {
   const p = defaultParams();

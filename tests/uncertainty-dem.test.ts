@@ -16,38 +16,13 @@ import { createFieldSimulator, simulateFieldPair } from '../src/uncertainty/fiel
 import { defaultUncertaintyParams, zeroVarianceParams } from '../src/uncertainty/params.js';
 import { createRng } from '../src/uncertainty/random.js';
 import { HERMITE_5 } from '../src/uncertainty/dem-error.js';
-import { windowTransform } from '../src/grid/transform.js';
-import { crsFromEpsg } from '../src/io/crs.js';
-import type { DemSource } from '../src/io/dem.js';
-import type { Grid } from '../src/grid/grid.js';
 import { fillDam, referenceDams, referenceValley } from './helpers/synthetic.js';
+import { memoryDem } from './helpers/memory-dem.js';
 
 const SIGMA_M = 0.1; // USGS Lidar Base Specification QL2 RMSEz (from memory)
 const RANGE_M = 20;
 const FIELDS = 400;
 
-function memoryDem(grid: Grid): DemSource {
-  return {
-    width: grid.width,
-    height: grid.height,
-    transform: grid.transform,
-    crs: crsFromEpsg(32612),
-    zUnit: 'metre',
-    zUnitSource: 'geokey',
-    files: [],
-    async readWindow(col0, row0, cols, rows) {
-      const c0 = Math.max(0, col0);
-      const r0 = Math.max(0, row0);
-      const c1 = Math.min(grid.width, col0 + cols);
-      const r1 = Math.min(grid.height, row0 + rows);
-      const w = c1 - c0;
-      const z = new Float32Array(w * (r1 - r0));
-      for (let r = r0; r < r1; r++) z.set(grid.z.subarray(r * grid.width + c0, r * grid.width + c1), (r - r0) * w);
-      return makeGrid({ width: w, height: r1 - r0, z, transform: windowTransform(grid.transform, c0, r0), colOffset: c0, rowOffset: r0 });
-    },
-    async close() {},
-  };
-}
 
 describe('DEM error: level shift against full re-flooding', () => {
   const grid = referenceValley();

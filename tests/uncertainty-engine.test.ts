@@ -5,10 +5,7 @@
  * deterministic water-surface combination, candidate inclusion and recall.
  */
 import { describe, expect, it } from 'vitest';
-import { makeGrid, type Grid } from '../src/grid/grid.js';
-import { windowTransform } from '../src/grid/transform.js';
-import { crsFromEpsg } from '../src/io/crs.js';
-import type { DemSource } from '../src/io/dem.js';
+import type { Grid } from '../src/grid/grid.js';
 import type { DamInput } from '../src/inventory.js';
 import { drawBands } from '../src/pipeline/draws.js';
 import { estimatePonds, type EstimateParams } from '../src/pipeline/estimate.js';
@@ -22,30 +19,8 @@ import { defaultUncertaintyParams, zeroVarianceParams, type UncertaintyParams } 
 import { createRng } from '../src/uncertainty/random.js';
 import { makeDam, referenceChannelCol, referenceDams, referenceValley, REFERENCE_VALLEY, vValley } from './helpers/synthetic.js';
 import { colToX, rowToY } from '../src/grid/transform.js';
+import { memoryDem } from './helpers/memory-dem.js';
 
-/** An in-memory DEM (projected, metres) over a grid, read window by window like a GeoTIFF mosaic. */
-function memoryDem(grid: Grid): DemSource {
-  return {
-    width: grid.width,
-    height: grid.height,
-    transform: grid.transform,
-    crs: crsFromEpsg(32612),
-    zUnit: 'metre',
-    zUnitSource: 'geokey',
-    files: [],
-    async readWindow(col0, row0, cols, rows) {
-      const c0 = Math.max(0, col0);
-      const r0 = Math.max(0, row0);
-      const c1 = Math.min(grid.width, col0 + cols);
-      const r1 = Math.min(grid.height, row0 + rows);
-      const w = c1 - c0;
-      const z = new Float32Array(w * (r1 - r0));
-      for (let r = r0; r < r1; r++) z.set(grid.z.subarray(r * grid.width + c0, r * grid.width + c1), (r - r0) * w);
-      return makeGrid({ width: w, height: r1 - r0, z, transform: windowTransform(grid.transform, c0, r0), colOffset: c0, rowOffset: r0 });
-    },
-    async close() {},
-  };
-}
 
 function runParams(u: Partial<UncertaintyParams>): EstimateParams {
   const p = defaultParams();
