@@ -59,6 +59,17 @@ export interface CascadeDraw {
   maxDepthM: Float64Array;
 }
 
+/** Buffers for one draw of a cluster of `members` ponds, reused draw after draw. */
+export function createCascadeDraw(members: number): CascadeDraw {
+  return {
+    levelM: new Float64Array(members),
+    included: new Uint8Array(members),
+    areaM2: new Float64Array(members),
+    volumeM3: new Float64Array(members),
+    maxDepthM: new Float64Array(members),
+  };
+}
+
 /** Combines one draw of a cluster (see the file comment). Members are indexed as in cluster.members. */
 export function combineCascade(cluster: OverlapCluster, inputs: (DamDrawInput | null)[], draw: CascadeDraw, s: CascadeScratch): void {
   const members = cluster.members;

@@ -26,7 +26,7 @@
  */
 import type { DamStatus } from '../inventory.js';
 import { pondAt } from '../ponds/stage-storage.js';
-import { combineCascade, createCascadeScratch, type CascadeDraw } from './cascade.js';
+import { combineCascade, createCascadeDraw, createCascadeScratch, type CascadeDraw } from './cascade.js';
 import { bandOf, percentileStandardError, tooFewDraws, type Bands } from './bands.js';
 import { HERMITE_5, drawDemErrors } from './dem-error.js';
 import type { DrawInputs, DamDrawInput, OverlapCluster } from './prepare.js';
@@ -447,13 +447,7 @@ function combineClusterDraws(
   const members = cluster.members;
   const M = members.length;
   const scratch = createCascadeScratch(cluster);
-  const draw: CascadeDraw = {
-    levelM: new Float64Array(M),
-    included: new Uint8Array(M),
-    areaM2: new Float64Array(M),
-    volumeM3: new Float64Array(M),
-    maxDepthM: new Float64Array(M),
-  };
+  const draw = createCascadeDraw(M);
   for (let k = 0; k < N; k++) {
     let deterministic = true;
     for (let p = 0; p < M; p++) {

@@ -23,7 +23,7 @@
  */
 import { pondAt } from '../ponds/stage-storage.js';
 import { bandOf, type Bands } from './bands.js';
-import { combineCascade, createCascadeScratch, type CascadeDraw } from './cascade.js';
+import { combineCascade, createCascadeDraw, createCascadeScratch, type CascadeDraw } from './cascade.js';
 import { smearedPond, type DeterministicDam, type DrawOutcome } from './engine.js';
 import type { DrawInputs } from './prepare.js';
 
@@ -113,13 +113,7 @@ export function runScenarioDraws(args: {
     const members = cluster.members;
     const M = members.length;
     const scratch = createCascadeScratch(cluster);
-    const draw: CascadeDraw = {
-      levelM: new Float64Array(M),
-      included: new Uint8Array(M),
-      areaM2: new Float64Array(M),
-      volumeM3: new Float64Array(M),
-      maxDepthM: new Float64Array(M),
-    };
+    const draw = createCascadeDraw(M);
     for (let k = 0; k < N; k++) {
       let deterministic = true;
       for (let p = 0; p < M; p++) {
