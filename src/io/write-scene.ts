@@ -2,11 +2,12 @@
  * Writes a generated scene as the inputs a user would bring: the DEM as a
  * GeoTIFF and the dam inventory as RFC 7946 GeoJSON (WGS 84 lon/lat).
  */
-import { mkdir, writeFile } from 'node:fs/promises';
+import { mkdir } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { GeoTransform } from '../grid/transform.js';
 import type { DamGeometry } from '../inventory.js';
-import { WGS84, crsFromEpsg, makeTransform } from './crs.js';
+import { crsFromEpsg } from './crs.js';
+import { writeDamsGeoJson } from './write-dams.js';
 import { writeGeoTiff } from './geotiff-write.js';
 
 /** What a generated scene must offer to be written out. */
@@ -26,21 +27,6 @@ export async function writeSceneInputs(dir: string, scene: SceneForFiles, names 
   const demPath = join(dir, names.dem);
   const damsPath = join(dir, names.dams);
   await writeGeoTiff(demPath, { width: scene.width, height: scene.height, data: scene.z, transform: scene.transform, crs, noData: -9999, zUnit: 'metre' });
-  const toLonLat = makeTransform(crs, WGS84);
-  const ll = (x: number, y: number): [number, number] => {
-    const [lon, lat] = toLonLat(x, y);
-    return [Number(lon.toFixed(8)), Number(lat.toFixed(8))];
-  };
-  const features = scene.dams.map((d) => ({
-    type: 'Feature',
-    properties: d.properties,
-    geometry:
-      d.geometry.kind === 'point'
-        ? { type: 'Point', coordinates: ll(d.geometry.x, d.geometry.y) }
-        : d.geometry.lines.length === 1
-          ? { type: 'LineString', coordinates: d.geometry.lines[0]!.map(([x, y]) => ll(x, y)) }
-          : { type: 'MultiLineString', coordinates: d.geometry.lines.map((line) => line.map(([x, y]) => ll(x, y))) },
-  }));
-  await writeFile(damsPath, JSON.stringify({ type: 'FeatureCollection', features }, null, 1) + '\n');
+  await writeDamsGeoJson(damsPath, scene.epsg, scene.dams);
   return { demPath, damsPath };
 }
