@@ -153,8 +153,8 @@ export interface RunOverview {
   proposed: ProposedScenario;
 }
 
-/** The whole comparison (compare.json without its tool header). */
-export interface Comparison {
+/** The whole comparison (compare.json without its tool header); its pair fields compare the first run with the last. */
+export interface Comparison extends Omit<PairComparison, 'from' | 'to'> {
   runs: RunOverview[];
   parameters: {
     match_tolerance_m: number;
@@ -163,15 +163,6 @@ export interface Comparison {
     volume_change_fraction: number;
     volume_change_min_m3: number;
   };
-  /** First run → last run. */
-  totals: TotalsChange;
-  dams: DamChange[];
-  dam_counts: Record<DamChangeClass, number>;
-  watersheds: WatershedChange[] | null;
-  watersheds_note: string;
-  dem_difference: DemDifference;
-  change_map: ChangeMapFigures | NoChangeMap;
-  notes: string[];
   /** Every consecutive pair (one when two runs are compared). */
   pairs: PairComparison[];
 }
