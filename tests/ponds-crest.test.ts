@@ -107,12 +107,22 @@ describe('DEM-visible dam', () => {
     expect(s.crestElevM).toBe(q(0.6));
     expect(s.heightM).toBeCloseTo(q(0.6) - toeM, 12);
     expect(s.heightSource).toBe('dem');
+    // The crest elevation hangs on the crest's own cells.
+    expect(s.levelCells).toBe(s.crestCells);
+    expect(s.levelRefCell).toBe(s.bedCell);
   });
   it('a measured height counts from the toe', () => {
     const s = ok(setup(grid, makeDam({ id: 'm', lines: across, heightM: 1.0 })));
     expect(s.bedElevM).toBe(toeM);
     expect(s.crestElevM).toBeCloseTo(toeM + 1.0, 12);
     expect(s.heightSource).toBe('measured');
+    // ...so the crest elevation hangs on the downstream probe's cells, the lowest of them the toe.
+    expect(s.levelCells).not.toBe(s.crestCells);
+    expect(grid.z[s.levelRefCell]).toBe(toeM);
+    for (const i of s.levelCells) {
+      expect(grid.z[i]!).toBeGreaterThanOrEqual(toeM);
+      expect(s.crestCells.includes(i)).toBe(false);
+    }
   });
   it('a mound lower than 0.3 m is not taken as the dam', () => {
     const low = sampleGrid(frame, (x, y) => 0.01 * y + Math.abs(x) / 10 + (Math.abs(y) <= 0.5 ? 0.2 : 0));

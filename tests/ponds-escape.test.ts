@@ -79,6 +79,21 @@ describe('edge of the DEM or of the reach box', () => {
     expect(fill.limitedBy).toBe('edge');
     expect(fill.waterLevelM).toBe(zAt(0, 50));
     expect(fill.escapeCell).toBe(30); // row 0, centre column
+    // The pass is the cell whose elevation set the escape level (here the escape cell itself).
+    expect(grid.z[fill.escapePassCell]).toBe(fill.escapeLevelM);
+  });
+
+  it('closing the pass with a wall sends the water out by the next lowest way, no lower than the first', () => {
+    const short: ValleyFrame = { width: 61, height: 120, cellM: 0.5, damRow: 100 };
+    const grid = vValley(short, 10, 0.01);
+    const dam = makeDam({ id: 'e', lines: [[[-14, 0], [14, 0]]], upstream: 'left' });
+    const { setup, fill } = fillDam(grid, dam);
+    const again = fillDam(grid, dam, { wallCells: Int32Array.of(fill.escapePassCell) }).fill;
+    expect(again.escapePassCell).not.toBe(fill.escapePassCell);
+    expect(grid.z[again.escapePassCell]).toBe(again.escapeLevelM);
+    // On a V-valley the next edge cells of the top row flank the channel cell, 0.1 m per metre across (slope 1:10), 0.5 m out.
+    expect(again.escapeLevelM).toBeCloseTo(fill.escapeLevelM + 0.05, 4); // elevations are float32
+    expect(setup.levelRefCell).toBe(setup.bedCell);
   });
 
   it('a reach box stops the flood the same way', () => {

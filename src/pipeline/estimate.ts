@@ -20,7 +20,7 @@ import type { DamInput } from '../inventory.js';
 import type { DemSource } from '../io/dem.js';
 import { combinePonds, type PondLayer } from '../ponds/combine.js';
 import type { CrestSetup } from '../ponds/crest.js';
-import { createFillScratch, fillBehindCrest, type PondFill } from '../ponds/fill.js';
+import { createFillScratch, fillBehindCrest, type PondFill, type ReachBox } from '../ponds/fill.js';
 import { setupAndFill } from '../ponds/upstream-by-fill.js';
 import type { PondParams } from '../ponds/params.js';
 import { crestFromPoint } from '../ponds/point-crest.js';
@@ -147,7 +147,11 @@ export async function estimatePonds(
     combineGroup(grid, group.members.map((k) => work[k]!), box, depth!, outlines, work, pondWater);
     water.below(grid, members, box, waterWindow, depth, warnings);
     scenarioTally.addGroup(grid, group.members.map((k) => ({ index: k, result: work[k]!.result, fill: work[k]!.fill })));
-    prep?.addGroup(grid, group.members.map((k) => ({ index: k, dam: work[k]!.dam, inTotals: work[k]!.result.in_totals, setup: work[k]!.setup, fill: work[k]!.fill })));
+    prep?.addGroup(
+      grid,
+      group.members.map((k) => ({ index: k, dam: work[k]!.dam, inTotals: work[k]!.result.in_totals, setup: work[k]!.setup, fill: work[k]!.fill, reachBox: reachBoxIn(work[k]!.box, box) })),
+      scratch,
+    );
   }
 
   warnings.push(...water.finish());
@@ -182,8 +186,7 @@ function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, 
       message: `dam ${dam.id}: ${crest.outside} crest vertices lie off the DEM; the crest is cut at the DEM's edge`,
     });
   }
-  const own = w.box!;
-  const reachBox = { col0: own.col0 - box.col0, row0: own.row0 - box.row0, col1: own.col1 - box.col0, row1: own.row1 - box.row0 };
+  const reachBox = reachBoxIn(w.box!, box)!;
   // A crest built from a point is a line from here on.
   const lineDam: DamInput = dam.geometry.kind === 'line' ? dam : { ...dam, geometry: { kind: 'line', lines } };
   const done = setupAndFill(grid, lineDam, crest.cells, params.pond, { reachBox }, scratch);
@@ -217,6 +220,12 @@ function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, 
   }
 }
 
+/** A dam's own search box in the cells of its group's window (undefined without a box). */
+function reachBoxIn(own: CellBox | null, box: CellBox): ReachBox | undefined {
+  if (!own) return undefined;
+  return { col0: own.col0 - box.col0, row0: own.row0 - box.row0, col1: own.col1 - box.col0, row1: own.row1 - box.row0 };
+}
+
 /**
  * Fills a dam again with the setup it has, on a window whose water surfaces
  * were set to their level, and records the fill's figures; returns the cells
@@ -225,8 +234,7 @@ function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, 
 function refillOne(grid: Grid, w: Working, box: CellBox, scratch: ReturnType<typeof createFillScratch>, params: EstimateParams, prep: DrawPrep | null): number {
   const { setup, result } = w;
   if (!setup || !w.fill || !w.box) return 0;
-  const own = w.box;
-  const reachBox = { col0: own.col0 - box.col0, row0: own.row0 - box.row0, col1: own.col1 - box.col0, row1: own.row1 - box.row0 };
+  const reachBox = reachBoxIn(w.box, box)!;
   const first = fillBehindCrest(grid, setup, { reachBox }, scratch);
   const drawTopM = prep ? prep.floodTopM(w.dam, setup) : -Infinity;
   const kept = first.escapeKind === null && drawTopM > first.topLevelM ? fillBehindCrest(grid, setup, { reachBox, maxLevelM: drawTopM }, scratch) : first;

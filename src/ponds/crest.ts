@@ -71,6 +71,14 @@ export interface CrestSetup {
   /** Lowest ground within the probe on the upstream and downstream sides, m (NaN when none). */
   probeUpM: number;
   probeDownM: number;
+  /**
+   * The cells whose lowest DEM elevation the crest elevation is measured
+   * from (the crest cells, or the downstream probe's cells when the bed is
+   * a DEM-visible dam's toe), and that lowest cell. A DEM error changes
+   * which of them is lowest; the draws take that into account.
+   */
+  levelCells: Int32Array;
+  levelRefCell: number;
   warnings: Warning[];
 }
 
@@ -197,6 +205,16 @@ export function setupCrest(
     warn('breached-no-storage', 'breached with no breach height above the bed: counted as holding no water');
   }
 
+  // The crest elevation hangs on the lowest of these cells: the downstream toe for a DEM-visible dam whose height is given, else the crest.
+  const fromToe = demVisible && heightSource !== 'dem';
+  const levelCells = fromToe ? Int32Array.from(probe.cells[upCode === LEFT ? 1 : 0]) : crestCells;
+  let levelRefCell = bedCell;
+  if (fromToe) {
+    for (let k = 0; k < levelCells.length; k++) if (z[levelCells[k]!]! === bedElevM) {
+      levelRefCell = levelCells[k]!;
+      break;
+    }
+  }
   const seedCells = findSeeds(grid, segs, crestCells, bedCol, bedRow, upCode, probe.nearestCell[upCode === LEFT ? 0 : 1]!);
   if (seedCells.length === 0 && holdsWater) {
     return skip('no-upstream-cell', 'no valid DEM cell next to the crest on its upstream side; extend the DEM or move the crest');
@@ -218,6 +236,8 @@ export function setupCrest(
     upstreamSource,
     probeUpM,
     probeDownM,
+    levelCells,
+    levelRefCell,
     warnings,
   };
 }
@@ -277,6 +297,8 @@ interface Probe {
   rightM: number;
   /** Nearest valid non-crest cell to the bed cell on the left and on the right, or -1. */
   nearestCell: Int32Array;
+  /** The probed cells on the left and on the right (flat indices). */
+  cells: [number[], number[]];
 }
 
 /**
@@ -302,6 +324,7 @@ function probeSides(
   const low = [NaN, NaN];
   const nearD2 = [Infinity, Infinity];
   const nearestCell = new Int32Array([-1, -1]);
+  const cells: [number[], number[]] = [[], []];
   for (let row = Math.max(0, bedRow - dRows); row <= Math.min(height - 1, bedRow + dRows); row++) {
     for (let col = Math.max(0, bedCol - dCols); col <= Math.min(width - 1, bedCol + dCols); col++) {
       const ex = (col - bedCol) * cellW;
@@ -314,6 +337,7 @@ function probeSides(
       const side = sideOf(segs, colToX(t, col + 0.5), rowToY(t, row + 0.5));
       if (side === NEITHER) continue;
       const k = side === LEFT ? 0 : 1;
+      cells[k].push(i);
       if (!(zi >= low[k]!)) low[k] = zi;
       if (d2 < nearD2[k]!) {
         nearD2[k] = d2;
@@ -321,7 +345,7 @@ function probeSides(
       }
     }
   }
-  return { leftM: low[0]!, rightM: low[1]!, nearestCell };
+  return { leftM: low[0]!, rightM: low[1]!, nearestCell, cells };
 }
 
 /** Valid non-crest cells 8-adjacent to the bed cell on the upstream side; falls back to the nearest probed upstream cell. */

@@ -64,6 +64,12 @@ export interface PondFill {
   escapeLevelM: number;
   /** Flat index of the escape cell, or -1. */
   escapeCell: number;
+  /**
+   * Flat index of the pass: the cell whose elevation set the escape level
+   * (the highest ground on the water's way out; the escape cell itself when
+   * it rose above the pond), or -1 without an escape.
+   */
+  escapePassCell: number;
   /** Highest level (m) the fill answers for: min(maxLevelM, escapeLevelM). */
   topLevelM: number;
   /** Crest cells and crest elevation (m) of the dam, for drowned-dam checks. */
@@ -111,6 +117,8 @@ export interface FillOptions {
   maxLevelM?: number;
   /** Cells the flood may enter (default: the whole grid); its edge counts as an escape. */
   reachBox?: ReachBox;
+  /** Cells that are walls besides the crest (flat indices): closes escape routes to find the next one. */
+  wallCells?: Int32Array;
 }
 
 /** Floods behind one crest (see the file comment). */
@@ -131,6 +139,8 @@ export function fillBehindCrest(grid: Grid, setup: CrestSetup, options: FillOpti
   const band = -stamp;
   for (let k = 0; k < setup.downstreamCells.length; k++) mark[setup.downstreamCells[k]!] = band;
   for (let k = 0; k < setup.crestCells.length; k++) mark[setup.crestCells[k]!] = stamp;
+  const walls = options.wallCells;
+  if (walls) for (let k = 0; k < walls.length; k++) mark[walls[k]!] = stamp;
   const heap = s.heap;
   heap.clear();
   for (let k = 0; k < setup.seedCells.length; k++) {
@@ -151,6 +161,9 @@ export function fillBehindCrest(grid: Grid, setup: CrestSetup, options: FillOpti
   let sumAZ = 0;
   let escapeLevelM = Infinity;
   let escapeCell = -1;
+  let escapePassCell = -1;
+  // The cell that last raised the level (came off the heap): the pass once the water escapes.
+  let levelCell = -1;
   let escapeKind: EscapeKind | null = null;
   // Improved priority-flood (Barnes et al. 2014, Algorithm 3): a neighbour at or below the current
   // level joins at that level, so it goes to a plain FIFO queue served before the heap.
@@ -174,6 +187,7 @@ export function fillBehindCrest(grid: Grid, setup: CrestSetup, options: FillOpti
       i = heap.pop();
       level = heap.lastPriority;
       if (level > maxLevelM) break;
+      levelCell = i < 0 ? ~i : i;
     }
     popped++;
     const inBand = i < 0;
@@ -206,6 +220,7 @@ export function fillBehindCrest(grid: Grid, setup: CrestSetup, options: FillOpti
     if (escapeKind !== null) {
       escapeLevelM = level;
       escapeCell = i;
+      escapePassCell = levelCell;
       break;
     }
     if (count === order.length) {
@@ -237,6 +252,7 @@ export function fillBehindCrest(grid: Grid, setup: CrestSetup, options: FillOpti
     escapeKind,
     escapeLevelM,
     escapeCell,
+    escapePassCell,
     topLevelM: Math.min(maxLevelM, escapeLevelM),
     crestCells: setup.crestCells,
     crestElevM,
@@ -257,6 +273,7 @@ function emptyFill(setup: CrestSetup): PondFill {
     escapeKind: null,
     escapeLevelM: Infinity,
     escapeCell: -1,
+    escapePassCell: -1,
     topLevelM: setup.bedElevM,
     crestCells: setup.crestCells,
     crestElevM: setup.crestElevM,

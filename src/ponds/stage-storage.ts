@@ -46,6 +46,25 @@ export function pondAt(fill: PondFill, levelM: number): PondSize {
 }
 
 /**
+ * The pond at `levelM` like pondAt, except that above the escape level of a
+ * fill that escaped, the pond keeps its area at the escape level and
+ * deepens: volume(top) + area(top)·(levelM − top). That is the pond whose
+ * pass stands higher than the DEM has it (the DEM-error draws move the
+ * pass with its own error); cells beyond the pass never join. Above a top
+ * set by the flood's level limit (no escape), levels are held at the top
+ * as in pondAt.
+ */
+export function pondAtExtended(fill: PondFill, levelM: number): PondSize {
+  if (fill.escapeKind === null || !(levelM > fill.topLevelM)) return pondAt(fill, levelM);
+  const top = fill.topLevelM;
+  const n = floodedCount(fill, top);
+  if (n === 0) return { cellCount: 0, areaM2: 0, volumeM3: 0 };
+  const areaM2 = fill.cumAreaM2[n - 1]!;
+  const volumeM3 = (levelM - fill.zRefM) * areaM2 - fill.cumAreaZ[n - 1]!;
+  return { cellCount: n, areaM2, volumeM3: volumeM3 > 0 ? volumeM3 : 0 };
+}
+
+/**
  * Stage–area–storage rows [level_m, area_m2, volume_m3] from the bed to the
  * fill's water level every `stepM` metres (the params default is 0.1 m);
  * the last row is exactly at the water level. Levels are bed + k·step, not

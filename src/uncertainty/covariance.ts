@@ -96,7 +96,19 @@ export interface ErrorSupport {
   blockAreaM2: Float64Array;
   /** Σ block areas, m² (0 for a dry pond: then ē is taken equal to the reference error). */
   areaM2: number;
-  /** Bounding box of the reference and the blocks, cell positions. */
+  /**
+   * Further points whose errors are drawn with the dam's (cell positions):
+   * first the alternatives to the reference, cells nearly as low as it
+   * among those the crest elevation is measured from (`altDeltaM`: their
+   * height above the reference, m), then the passes, the cells whose
+   * elevation sets the escape level by each of the lowest ways out
+   * (`passDeltaM`: their escape level above the lowest, m; the first is 0).
+   */
+  pointCol: Float64Array;
+  pointRow: Float64Array;
+  altDeltaM: Float64Array;
+  passDeltaM: Float64Array;
+  /** Bounding box of the reference, the points and the blocks, cell positions. */
   col0: number;
   col1: number;
   row0: number;
@@ -118,14 +130,39 @@ export function buildSupport(args: {
   cellWM: number;
   cellHM: number;
   blockM: number;
+  /** Alternatives to the reference (flat indices like `cells`) and their height above it, m. Default none. */
+  altCells?: Int32Array;
+  altDeltaM?: Float64Array;
+  /** The passes (flat indices like `cells`), lowest first, and their escape levels above the first, m. Default none. */
+  passCells?: Int32Array;
+  passDeltaM?: Float64Array;
 }): ErrorSupport {
   const { cells, width, colOffset, rowOffset, cellAreaM2, cellWM, cellHM } = args;
   const refCol = (args.refCell % width) + colOffset;
   const refRow = Math.floor(args.refCell / width) + rowOffset;
+  const altCells = args.altCells ?? new Int32Array(0);
+  const passCells = args.passCells ?? new Int32Array(0);
+  const nPoints = altCells.length + passCells.length;
+  const pointCol = new Float64Array(nPoints);
+  const pointRow = new Float64Array(nPoints);
+  let pc0 = refCol;
+  let pc1 = refCol;
+  let pr0 = refRow;
+  let pr1 = refRow;
+  for (let k = 0; k < nPoints; k++) {
+    const i = k < altCells.length ? altCells[k]! : passCells[k - altCells.length]!;
+    pointCol[k] = (i % width) + colOffset;
+    pointRow[k] = Math.floor(i / width) + rowOffset;
+    pc0 = Math.min(pc0, pointCol[k]!);
+    pc1 = Math.max(pc1, pointCol[k]!);
+    pr0 = Math.min(pr0, pointRow[k]!);
+    pr1 = Math.max(pr1, pointRow[k]!);
+  }
+  const points = { pointCol, pointRow, altDeltaM: args.altDeltaM ?? new Float64Array(0), passDeltaM: args.passDeltaM ?? new Float64Array(0) };
   const { c0, c1, r0, r1 } = cellBounds(cells, width);
   const empty = new Float64Array(0);
   if (cells.length === 0) {
-    return { refCol, refRow, cellWM, cellHM, blockCol: empty, blockRow: empty, blockAreaM2: empty, areaM2: 0, col0: refCol, col1: refCol, row0: refRow, row1: refRow };
+    return { refCol, refRow, cellWM, cellHM, blockCol: empty, blockRow: empty, blockAreaM2: empty, areaM2: 0, ...points, col0: pc0, col1: pc1, row0: pr0, row1: pr1 };
   }
   let blockM = args.blockM;
   for (;;) {
@@ -185,10 +222,11 @@ export function buildSupport(args: {
       blockRow,
       blockAreaM2,
       areaM2,
-      col0: Math.min(refCol, c0 + colOffset),
-      col1: Math.max(refCol, c1 + colOffset),
-      row0: Math.min(refRow, r0 + rowOffset),
-      row1: Math.max(refRow, r1 + rowOffset),
+      ...points,
+      col0: Math.min(pc0, c0 + colOffset),
+      col1: Math.max(pc1, c1 + colOffset),
+      row0: Math.min(pr0, r0 + rowOffset),
+      row1: Math.max(pr1, r1 + rowOffset),
     };
   }
 }
@@ -221,6 +259,46 @@ export function supportCovariance(a: ErrorSupport, b: ErrorSupport, sillM2: numb
   else if (b.areaM2 > 0) pp = rp;
   else pp = pr;
   return [rr, rp, pr, pp];
+}
+
+/** Number of jointly drawn errors of a support: the reference, the pond's mean, then its points. */
+export function supportSize(s: ErrorSupport): number {
+  return 2 + s.pointCol.length;
+}
+
+/**
+ * Covariances (m²) between the errors of two supports, row-major
+ * supportSize(a) × supportSize(b): [reference, pond mean, points...] of `a`
+ * against the same of `b`. For a dry pond the pond's mean error is its
+ * reference error. The first 2 × 2 equal supportCovariance.
+ */
+export function supportCovarianceBlock(a: ErrorSupport, b: ErrorSupport, sillM2: number, rangeM: number, same: boolean): Float64Array {
+  const na = supportSize(a);
+  const nb = supportSize(b);
+  const out = new Float64Array(na * nb);
+  const [rr, rp, pr, pp] = supportCovariance(a, b, sillM2, rangeM, same);
+  out[0] = rr;
+  out[1] = rp;
+  out[nb] = pr;
+  out[nb + 1] = pp;
+  // Point of a (x = −1: the reference) with point of b, and points with the other pond.
+  const colOf = (s: ErrorSupport, x: number): number => (x < 0 ? s.refCol : s.pointCol[x]!);
+  const rowOf = (s: ErrorSupport, x: number): number => (x < 0 ? s.refRow : s.pointRow[x]!);
+  for (let x = -1; x < na - 2; x++) {
+    const ra = x < 0 ? 0 : x + 2;
+    for (let y = -1; y < nb - 2; y++) {
+      if (x < 0 && y < 0) continue;
+      const rb = y < 0 ? 0 : y + 2;
+      out[ra * nb + rb] = sphericalCovariance(distM(a, colOf(a, x), rowOf(a, x), b, colOf(b, y), rowOf(b, y)), sillM2, rangeM);
+    }
+    // With b's pond mean (column 1), and b's points with a's pond mean (row 1).
+    if (x >= 0) out[ra * nb + 1] = b.areaM2 > 0 ? pointToPond(a, colOf(a, x), rowOf(a, x), b, sillM2, rangeM) : out[ra * nb]!;
+  }
+  for (let y = 0; y < nb - 2; y++) {
+    const rb = y + 2;
+    out[nb + rb] = a.areaM2 > 0 ? pointToPond(b, b.pointCol[y]!, b.pointRow[y]!, a, sillM2, rangeM) : out[rb]!;
+  }
+  return out;
 }
 
 /** First block of `q` whose column is at least `col` (blocks are sorted by column). */

@@ -28,20 +28,59 @@
  * levels around the shifted one (Abramowitz & Stegun 1964, 25.4.46) instead
  * of one.
  *
- * Approximations (tested against full re-flooding of perturbed DEMs): the
- * pond whose mean error is taken is the deterministic one; the smearing is
- * the expected one, not drawn; the escape level (spill) is taken from the
- * DEM as it is; for a DEM-visible dam with a measured height, the bed (the
- * downstream toe, within the 3 m probe) is taken to share the bed cell's
- * error.
+ * The lowest cell is itself a choice the error can change. The crest
+ * elevation hangs on the lowest of a set of cells (the crest's cells, or the
+ * downstream probe's for a DEM-visible dam whose height is given): cells
+ * nearly as low as the reference (within four standard deviations of the
+ * error difference, prepare.ts referenceAlternatives) are drawn with it, and
+ * the lowest of them on the true ground sets the crest: the effective
+ * reference error is max(e_ref, max_j(e_j − Δz_j)). Two equally low crest
+ * cells, common in a channel, lower the crest on average by about
+ * sd(e_1 − e_2)/√(2π) (the mean of a minimum of two Gaussians).
+ *
+ * Water that escapes below the crest (round its end, off the reach box,
+ * into NoData) leaves at the level of the pass, the highest cell of its way
+ * out, and the true ground moves that pass with its own error. The lowest
+ * ways out are found by closing each pass with a wall and flooding again
+ * (prepare.ts escapeRoutes); on the true ground the lowest of them sets the
+ * escape: the level is min(crest + ē − e_ref, escape + ē − e_pass) with the
+ * passes' effective error likewise a maximum. The fill with those passes
+ * closed answers for levels above the DEM's escape; above the last one
+ * found, the pond deepens over its area (stage-storage.ts pondAtExtended).
+ *
+ * Approximations, each tested against full re-flooding of perturbed DEMs
+ * (tests/uncertainty-dem.test.ts): the pond whose mean error is taken is the
+ * deterministic one; the smearing is the expected one, not drawn; the
+ * upstream side, DEM visibility and crest cells are those of the DEM as it
+ * is; and along one way out only its pass moves, while the error could also
+ * raise another cell of it above the pass. Measured on the reference
+ * valley (σ = 0.1 m, range 20 m): ponds held by their crest within 1 % of
+ * re-flooding at p05, p50 and p95; ponds spilling round short crests within
+ * 14 % (their bands span a factor of 4 to 5, which a fixed escape level
+ * would have missed entirely). Ponds whose escape is the DEM's edge are the
+ * least well served: along an uphill channel to the edge the error raises
+ * the way out more than its pass shows.
  */
 import { normal, createRng, deriveSeed } from './random.js';
-import { supportCovariance, supportGapM, type ErrorSupport } from './covariance.js';
+import { supportCovarianceBlock, supportGapM, supportSize, type ErrorSupport } from './covariance.js';
 
-/** Per-dam draws of the reference error and the pond's mean error, m; dam-major (d·draws + k). */
+/** Per-dam draws of the reference error, the pond's mean error and the pass's error, m; dam-major (d·draws + k). */
 export interface DemErrorDraws {
+  /**
+   * The reference's effective error: the crest elevation in the draw is the
+   * deterministic one minus this. max(e_ref, max_j(e_j − Δz_j)) over the
+   * alternatives j (cells Δz_j above the reference among those the crest is
+   * measured from): the lowest of them on the true ground sets the crest.
+   */
   refErrorM: Float64Array;
   meanErrorM: Float64Array;
+  /**
+   * The passes' effective error: the escape level in the draw is the
+   * deterministic one minus this. max_j(e_j − Δ_j) over the passes j
+   * (escape levels Δ_j above the lowest): the lowest way out on the true
+   * ground sets it. 0 without a pass.
+   */
+  passErrorM: Float64Array;
   /** Per dam: the error's standard deviation within its pond, σ_w = √(σ² − Var(ē)), m (0 without a support). */
   withinSdM: Float64Array;
   /** Dams whose errors are drawn jointly (connected within the range), for the record. */
@@ -52,10 +91,12 @@ export interface DemErrorDraws {
 }
 
 /**
- * Draws (e_ref, ē) for every dam with a support (null: no DEM error, zeros),
- * jointly Gaussian across dams closer than the range. Each dam's standard
- * normals come from its own stream (seed, 'dem', id), so a dam's draws do
- * not depend on the order of the inventory.
+ * Draws the errors of every dam with a support (null: no DEM error, zeros):
+ * per dam its reference, its pond's mean and its points (supportSize), all
+ * jointly Gaussian across dams closer than the range, reduced to the three
+ * numbers of DemErrorDraws. Each dam's standard normals come from its own
+ * stream (seed, 'dem-error', id), so a dam's draws do not depend on the
+ * order of the inventory.
  */
 export function drawDemErrors(args: {
   supports: (ErrorSupport | null)[];
@@ -69,19 +110,23 @@ export function drawDemErrors(args: {
   const n = supports.length;
   const refErrorM = new Float64Array(n * draws);
   const meanErrorM = new Float64Array(n * draws);
+  const passErrorM = new Float64Array(n * draws);
   const withinSdM = new Float64Array(n);
   const sill = sigmaM * sigmaM;
   let components = 0;
   let largest = 0;
   let clipped = 0;
-  if (!(sill > 0)) return { refErrorM, meanErrorM, withinSdM, components, largestComponent: largest, clippedPivots: clipped };
+  if (!(sill > 0)) return { refErrorM, meanErrorM, passErrorM, withinSdM, components, largestComponent: largest, clippedPivots: clipped };
 
   const members = connectedWithin(supports, rangeM);
   for (const comp of members) {
     components++;
     largest = Math.max(largest, comp.length);
-    const m = 2 * comp.length;
-    // Covariance of [e_ref(0), ē(0), e_ref(1), ē(1), ...], row-major m × m.
+    // Each member's first row in the component's vector of errors.
+    const start = new Int32Array(comp.length + 1);
+    for (let p = 0; p < comp.length; p++) start[p + 1] = start[p]! + supportSize(supports[comp[p]!]!);
+    const m = start[comp.length]!;
+    // Covariance of every member's [e_ref, ē, points...], row-major m × m.
     const cov = new Float64Array(m * m);
     for (let p = 0; p < comp.length; p++) {
       for (let q = p; q < comp.length; q++) {
@@ -89,39 +134,75 @@ export function drawDemErrors(args: {
         const b = supports[comp[q]!]!;
         // Supports further apart than the range share no error.
         if (p !== q && supportGapM(a, b) >= rangeM) continue;
-        const [rr, rp, pr, pp] = supportCovariance(a, b, sill, rangeM, p === q);
-        set2(cov, m, 2 * p, 2 * q, rr);
-        set2(cov, m, 2 * p, 2 * q + 1, rp);
-        set2(cov, m, 2 * p + 1, 2 * q, pr);
-        set2(cov, m, 2 * p + 1, 2 * q + 1, pp);
-        if (p === q && a.areaM2 > 0) withinSdM[comp[p]!] = Math.sqrt(Math.max(0, sill - pp));
+        const block = supportCovarianceBlock(a, b, sill, rangeM, p === q);
+        const na = start[p + 1]! - start[p]!;
+        const nb = start[q + 1]! - start[q]!;
+        for (let r = 0; r < na; r++) for (let c = 0; c < nb; c++) set2(cov, m, start[p]! + r, start[q]! + c, block[r * nb + c]!);
+        if (p === q && a.areaM2 > 0) withinSdM[comp[p]!] = Math.sqrt(Math.max(0, sill - block[nb + 1]!));
       }
     }
     const chol = cholesky(cov, m);
     clipped += chol.clipped;
     const lower = chol.lower;
-    // Standard normals per dam from its own stream: z[(k·m) + 2p + {0,1}].
+    // Standard normals per dam from its own stream: draw k's row holds each member's normals at its start.
     const z = new Float64Array(draws * m);
     for (let p = 0; p < comp.length; p++) {
       const rng = createRng(deriveSeed(seed, 'dem-error', ids[comp[p]!]!));
-      for (let k = 0; k < draws; k++) {
-        z[k * m + 2 * p] = normal(rng);
-        z[k * m + 2 * p + 1] = normal(rng);
-      }
+      const size = start[p + 1]! - start[p]!;
+      for (let k = 0; k < draws; k++) for (let r = 0; r < size; r++) z[k * m + start[p]! + r] = normal(rng);
     }
+    const e = new Float64Array(m);
     for (let k = 0; k < draws; k++) {
       const zk = k * m;
       for (let r = 0; r < m; r++) {
         let s = 0;
         const row = r * m;
         for (let c = 0; c <= r; c++) s += lower[row + c]! * z[zk + c]!;
-        const d = comp[r >> 1]!;
-        if ((r & 1) === 0) refErrorM[d * draws + k] = s;
-        else meanErrorM[d * draws + k] = s;
+        e[r] = s;
+      }
+      for (let p = 0; p < comp.length; p++) {
+        const d = comp[p]!;
+        const sup = supports[d]!;
+        const o = start[p]!;
+        refErrorM[d * draws + k] = referenceError(sup, e, o);
+        meanErrorM[d * draws + k] = e[o + 1]!;
+        passErrorM[d * draws + k] = passError(sup, e, o);
       }
     }
   }
-  return { refErrorM, meanErrorM, withinSdM, components, largestComponent: largest, clippedPivots: clipped };
+  return { refErrorM, meanErrorM, passErrorM, withinSdM, components, largestComponent: largest, clippedPivots: clipped };
+}
+
+/**
+ * The reference's effective error (m) from one dam's errors `e[o..]` =
+ * [e_ref, ē, points...] (supportSize of them): max(e_ref, max_j(e_j − Δz_j))
+ * over its alternatives.
+ */
+export function referenceError(s: ErrorSupport, e: ArrayLike<number>, o: number): number {
+  let ref = e[o]!;
+  for (let j = 0; j < s.altDeltaM.length; j++) ref = Math.max(ref, e[o + 2 + j]! - s.altDeltaM[j]!);
+  return ref;
+}
+
+/** The passes' effective error (m) from the same vector: max_j(e_j − Δ_j) over the passes; 0 without one. */
+export function passError(s: ErrorSupport, e: ArrayLike<number>, o: number): number {
+  const first = o + 2 + s.altDeltaM.length;
+  if (s.passDeltaM.length === 0) return 0;
+  let pass = -Infinity;
+  for (let j = 0; j < s.passDeltaM.length; j++) pass = Math.max(pass, e[first + j]! - s.passDeltaM[j]!);
+  return pass;
+}
+
+/**
+ * A dam's level on the DEM in a draw (m): the crest held at its drawn
+ * elevation `crestM` or the water let out at its escape level `escapeM`
+ * (Infinity: none), whichever is lower, each moved by its own error and
+ * raised by the pond's mean error (the frame of the file comment).
+ */
+export function drawnLevelM(crestM: number, escapeM: number, refErrorM: number, meanErrorM: number, passErrorM: number): number {
+  const held = crestM + (meanErrorM - refErrorM);
+  const escaped = escapeM + (meanErrorM - passErrorM);
+  return escaped < held ? escaped : held;
 }
 
 /** Gauss–Hermite nodes and weights / √π for E[f(u)], u ~ N(0, s²) ≈ Σ wⱼ·f(√2·s·xⱼ) (five points; Abramowitz & Stegun 1964, 25.4.46). */

@@ -9,7 +9,8 @@
  *
  * Per dam and draw (see dem-error.ts for the level shift):
  *   crest  = deterministic crest + (drawn height − deterministic height)
- *   level  = crest + (ē − e_ref)            (the pond's level on the DEM)
+ *   level  = min(crest + ē − e_ref, escape + ē − e_pass)
+ *                                            (the pond's level on the DEM)
  *   pond   = the fill at that level: a binary search in the fill order
  *   water level reported = min(level, fill top) − ē (the true surface)
  * and whether the dam counts in the draw (candidates: with probability
@@ -25,10 +26,10 @@
  * reproduces the deterministic figures bit for bit.
  */
 import type { DamStatus } from '../inventory.js';
-import { pondAt } from '../ponds/stage-storage.js';
+import { pondAtExtended } from '../ponds/stage-storage.js';
 import { combineCascade, createCascadeDraw, createCascadeScratch, type CascadeDraw } from './cascade.js';
 import { bandOf, percentileStandardError, tooFewDraws, type Bands } from './bands.js';
-import { HERMITE_5, drawDemErrors } from './dem-error.js';
+import { HERMITE_5, drawDemErrors, drawnLevelM } from './dem-error.js';
 import type { DrawInputs, DamDrawInput, OverlapCluster } from './prepare.js';
 import type { UncertaintyParams } from './params.js';
 import { drawMissing } from './recall.js';
@@ -160,10 +161,12 @@ export function runDraws(args: {
     if (!inp || !det.estimated) continue;
     const base = d * N;
     drawHeights(inp, det, u, sigmaLn, args.defaultHeightM, args.maxHeightM, heights.subarray(base, base + N));
-    const floor = levelFloor(terms, d, inp.fill.waterLevelM);
+    const floor = levelFloor(terms, d, inp.waterLevelM);
+    // Water that escapes below the crest does so at the lowest of its ways out, each moving with its pass's error.
+    const escapeM = inp.escapeLevelM;
     for (let k = 0; k < N; k++) {
       const crest = inp.crestElevM + (heights[base + k]! - inp.heightM);
-      const level = crest + (dem.meanErrorM[base + k]! - dem.refErrorM[base + k]!);
+      const level = drawnLevelM(crest, escapeM, dem.refErrorM[base + k]!, dem.meanErrorM[base + k]!, dem.passErrorM[base + k]!);
       levels[base + k] = level < floor ? floor : level;
     }
     drawInclusion(det, u, seed, included.subarray(base, base + N));
@@ -229,9 +232,10 @@ export function runDraws(args: {
     const clustered = inp.cluster >= 0;
     for (let k = 0; k < N; k++) {
       const level = levels[base + k]!;
-      const h = Math.min(level, fill.topLevelM);
+      // Above an escape the pond deepens over its area at the pass (pondAtExtended); above the flood's level limit it is held there.
+      const h = fill.escapeKind !== null ? level : Math.min(level, fill.topLevelM);
       if (level > fill.topLevelM && fill.escapeKind === null && inp.holdsWater) floodTopHits++;
-      const plain = pondAt(fill, level);
+      const plain = pondAtExtended(fill, level);
       const sw = dem.withinSdM[d]!;
       // The error's variation within the pond: the expected pond over the smeared level (dem-error.ts).
       const own = sw > 0 ? smearedPond(fill, level, sw) : plain;
@@ -244,7 +248,7 @@ export function runDraws(args: {
           damAreaM2[base + k] = 0;
           damVolumeM3[base + k] = 0;
           damMaxDepthM[base + k] = 0;
-        } else if (det.in_totals && h === fill.waterLevelM && termsAtDet(d, k)) {
+        } else if (det.in_totals && h === inp.waterLevelM && termsAtDet(d, k)) {
           damAreaM2[base + k] = det.area_m2;
           damVolumeM3[base + k] = det.volume_m3;
           damMaxDepthM[base + k] = det.max_depth_m;
@@ -386,7 +390,7 @@ export function smearedPond(fill: DamDrawInput['fill'], levelM: number, s: numbe
   let volume = 0;
   let cells = 0;
   for (let j = 0; j < HERMITE_5.x.length; j++) {
-    const p = pondAt(fill, levelM + Math.SQRT2 * s * HERMITE_5.x[j]!);
+    const p = pondAtExtended(fill, levelM + Math.SQRT2 * s * HERMITE_5.x[j]!);
     area += HERMITE_5.w[j]! * p.areaM2;
     volume += HERMITE_5.w[j]! * p.volumeM3;
     if (j === 0) cells = p.cellCount;
@@ -457,7 +461,7 @@ function combineClusterDraws(
       const inc = included[d * N + k] === 1;
       draw.levelM[p] = levels[d * N + k]!;
       draw.included[p] = inc ? 1 : 0;
-      if (inc !== det.in_totals || (inc && (Math.min(draw.levelM[p]!, fill.topLevelM) !== fill.waterLevelM || !termsAtDet(d, k)))) deterministic = false;
+      if (inc !== det.in_totals || (inc && (Math.min(draw.levelM[p]!, fill.topLevelM) !== inputs[d]!.waterLevelM || !termsAtDet(d, k)))) deterministic = false;
     }
     if (deterministic) {
       for (const d of members) {

@@ -17,10 +17,10 @@
 import type { Grid } from '../grid/grid.js';
 import type { DamInput } from '../inventory.js';
 import type { CrestSetup, HeightSource } from '../ponds/crest.js';
-import type { PondFill } from '../ponds/fill.js';
+import { fillBehindCrest, type FillScratch, type PondFill, type ReachBox } from '../ponds/fill.js';
 import type { PondParams } from '../ponds/params.js';
 import { floodedCount } from '../ponds/stage-storage.js';
-import { buildSupport, type ErrorSupport } from './covariance.js';
+import { buildSupport, sphericalSemivariogram, type ErrorSupport } from './covariance.js';
 import { FLOOD_TOP_SIGMAS, type UncertaintyParams } from './params.js';
 
 /** One estimated dam as the draws see it. */
@@ -36,6 +36,15 @@ export interface DamDrawInput {
   crestElevM: number;
   /** True for a dam that holds water (false: breached with no breach height). */
   holdsWater: boolean;
+  /** Deterministic water level, m. */
+  waterLevelM: number;
+  /**
+   * Level (m) at which water escapes the deterministic fill below its top
+   * (Infinity: it does not). With the DEM error on, `fill` is flooded again
+   * with the lowest ways out closed (see escapeRoutes), so it answers above
+   * this level, up to the next way out.
+   */
+  escapeLevelM: number;
   /** Support of the DEM error, or null when that source is off. */
   support: ErrorSupport | null;
   /** Lowest ground elevation among fill.order[0..k], m. */
@@ -115,14 +124,16 @@ export interface GroupMember {
   inTotals: boolean;
   setup?: CrestSetup | undefined;
   fill?: PondFill | undefined;
+  /** The box the dam's fill was confined to (cells of the group's window); default the whole window. */
+  reachBox?: ReachBox | undefined;
 }
 
 /** Collects draw inputs group by group during the estimate. */
 export interface DrawPrep {
   /** Level (m) to flood a dam to, so every draw of its crest stays inside the fill. */
   floodTopM(dam: DamInput, setup: CrestSetup): number;
-  /** Records a group's dams while `grid` (the group's window) is in memory. */
-  addGroup(grid: Grid, members: GroupMember[]): void;
+  /** Records a group's dams while `grid` (the group's window) is in memory; `scratch` (optional) serves its fills. */
+  addGroup(grid: Grid, members: GroupMember[], scratch?: FillScratch): void;
   finish(): DrawInputs;
 }
 
@@ -149,11 +160,11 @@ export function createDrawPrep(u: UncertaintyParams, pond: PondParams, damCount:
       }
       return setup.crestElevM + heightUpM + z * Math.sqrt(heightSd * heightSd + demSd * demSd);
     },
-    addGroup(grid, members) {
+    addGroup(grid, members, scratch) {
       const eligible: GroupMember[] = [];
       for (const m of members) {
         if (!m.fill || !m.setup) continue;
-        const input = damInput(grid, m, u, demOn);
+        const input = damInput(grid, m, u, demOn, this.floodTopM(m.dam, m.setup), scratch);
         dams[m.index] = input;
         if (input.fill.order.length > 0 && mayCount(m, u)) eligible.push(m);
       }
@@ -190,9 +201,12 @@ function mayCount(m: GroupMember, u: UncertaintyParams): boolean {
   return m.inTotals;
 }
 
-function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boolean): DamDrawInput {
-  const fill = m.fill!;
+function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boolean, floodTopM: number, scratch: FillScratch | undefined): DamDrawInput {
   const setup = m.setup!;
+  const escapeLevelM = m.fill!.escapeKind !== null ? m.fill!.escapeLevelM : Infinity;
+  // With the DEM error on, a pond that escapes gets its next ways out and a fill with the lowest closed.
+  const routes = demOn && setup.holdsWater && m.fill!.escapeKind !== null ? escapeRoutes(grid, setup, m.fill!, floodTopM, m.reachBox, u.demRmseM, scratch) : null;
+  const fill = routes ? routes.fill : m.fill!;
   const z = grid.z;
   const n = fill.order.length;
   const prefixMinZ = new Float32Array(n);
@@ -204,19 +218,25 @@ function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boole
   }
   let support: ErrorSupport | null = null;
   if (demOn && setup.holdsWater) {
-    let count = floodedCount(fill, fill.waterLevelM);
+    // The deterministic pond's cells (the fill with ways out closed starts with the same cells).
+    let count = floodedCount(fill, m.fill!.waterLevelM);
     if (count === 0) count = n;
-    const bedRow = Math.floor(setup.bedCell / grid.width);
+    const refRow = Math.floor(setup.levelRefCell / grid.width);
+    const alts = referenceAlternatives(grid, setup, u.demRmseM, u.demErrorRangeM);
     support = buildSupport({
       cells: fill.order.subarray(0, count),
       width: grid.width,
       colOffset: grid.colOffset,
       rowOffset: grid.rowOffset,
       cellAreaM2: grid.cellAreaM2,
-      refCell: setup.bedCell,
-      cellWM: grid.cellWidthM[bedRow]!,
+      refCell: setup.levelRefCell,
+      cellWM: grid.cellWidthM[refRow]!,
       cellHM: grid.cellHeightM,
       blockM: u.demErrorRangeM / 4,
+      altCells: alts.cells,
+      altDeltaM: alts.deltaM,
+      passCells: routes?.passCells,
+      passDeltaM: routes?.passDeltaM,
     });
   }
   return {
@@ -227,6 +247,8 @@ function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boole
     heightM: setup.heightM,
     crestElevM: setup.crestElevM,
     holdsWater: setup.holdsWater,
+    waterLevelM: m.fill!.waterLevelM,
+    escapeLevelM,
     support,
     prefixMinZ,
     cluster: -1,
@@ -474,4 +496,81 @@ function indexOfSorted(sorted: Int32Array, value: number): number {
     else hi = mid;
   }
   return lo < sorted.length && sorted[lo] === value ? lo : -1;
+}
+
+/** Most alternatives to a dam's reference cell drawn with it. */
+export const MAX_REFERENCE_ALTERNATIVES = 8;
+/** An alternative counts while it stands less than this many standard deviations of the error difference above the reference. */
+const ALTERNATIVE_SDS = 4;
+
+/**
+ * The cells that could be the lowest of those a dam's crest elevation is
+ * measured from (CrestSetup.levelCells) once the DEM error is added: every
+ * other cell whose height above the reference cell, Δz, is under
+ * ALTERNATIVE_SDS standard deviations of the two cells' error difference,
+ * √(2·γ(h)) for the spherical model at their distance h; the
+ * MAX_REFERENCE_ALTERNATIVES likeliest (smallest Δz per standard deviation).
+ * Flat indices of `grid` and Δz in metres.
+ */
+export function referenceAlternatives(grid: Grid, setup: CrestSetup, sigmaM: number, rangeM: number): { cells: Int32Array; deltaM: Float64Array } {
+  const { z, width } = grid;
+  const ref = setup.levelRefCell;
+  const refCol = ref % width;
+  const refRow = (ref - refCol) / width;
+  const zRef = z[ref]!;
+  const found: { cell: number; deltaM: number; score: number }[] = [];
+  for (let k = 0; k < setup.levelCells.length; k++) {
+    const i = setup.levelCells[k]!;
+    if (i === ref) continue;
+    const col = i % width;
+    const row = (i - col) / width;
+    const dx = (col - refCol) * grid.cellWidthM[row]!;
+    const dy = (row - refRow) * grid.cellHeightM;
+    const sd = Math.sqrt(2 * sphericalSemivariogram(Math.hypot(dx, dy), sigmaM * sigmaM, rangeM));
+    const deltaM = z[i]! - zRef;
+    if (!(sd > 0) || !(deltaM < ALTERNATIVE_SDS * sd)) continue;
+    found.push({ cell: i, deltaM, score: deltaM / sd });
+  }
+  found.sort((a, b) => a.score - b.score || a.cell - b.cell);
+  const kept = found.slice(0, MAX_REFERENCE_ALTERNATIVES);
+  return { cells: Int32Array.from(kept, (f) => f.cell), deltaM: Float64Array.from(kept, (f) => f.deltaM) };
+}
+
+/** Most ways out of a pond drawn with it (the lowest and the next ones). */
+export const MAX_ESCAPE_ROUTES = 6;
+
+/**
+ * The lowest ways out of a pond that escapes below its top: the pass of the
+ * deterministic fill (the cell whose elevation set the escape level), then,
+ * with that pass made a wall, the pass of the next way out, and so on while
+ * the next escape level stands less than ALTERNATIVE_SDS·√2·σ above the
+ * first (beyond, its own error could hardly make it the lowest), at most
+ * MAX_ESCAPE_ROUTES. On the true ground the lowest of them lets the water
+ * out. Also returns the fill with all those passes closed, flooded to the
+ * draws' top: it answers for levels above the first escape (the pond whose
+ * pass stands higher than the DEM shows grows over the ground behind it).
+ * The routes closed are parallel ways out; that a route's highest point may
+ * move along it under the error is not modelled.
+ */
+export function escapeRoutes(
+  grid: Grid,
+  setup: CrestSetup,
+  fill: PondFill,
+  floodTopM: number,
+  reachBox: ReachBox | undefined,
+  sigmaM: number,
+  scratch: FillScratch | undefined,
+): { passCells: Int32Array; passDeltaM: Float64Array; fill: PondFill } {
+  const first = fill.escapeLevelM;
+  const reachM = ALTERNATIVE_SDS * Math.SQRT2 * sigmaM;
+  const passes = [fill.escapePassCell];
+  const deltas = [0];
+  const options = { maxLevelM: Math.max(floodTopM, fill.topLevelM), ...(reachBox ? { reachBox } : {}) };
+  let closed = fillBehindCrest(grid, setup, { ...options, wallCells: Int32Array.from(passes) }, scratch);
+  while (closed.escapeKind !== null && passes.length < MAX_ESCAPE_ROUTES && closed.escapeLevelM - first < reachM && closed.escapePassCell >= 0) {
+    passes.push(closed.escapePassCell);
+    deltas.push(closed.escapeLevelM - first);
+    closed = fillBehindCrest(grid, setup, { ...options, wallCells: Int32Array.from(passes) }, scratch);
+  }
+  return { passCells: Int32Array.from(passes), passDeltaM: Float64Array.from(deltas), fill: closed };
 }

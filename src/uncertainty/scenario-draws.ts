@@ -21,7 +21,7 @@
  * with-proposed shares (pipeline/scenarios.ts), so zero variance reproduces
  * the deterministic scenario exactly.
  */
-import { pondAt } from '../ponds/stage-storage.js';
+import { pondAt, pondAtExtended } from '../ponds/stage-storage.js';
 import { bandOf, type Bands } from './bands.js';
 import { combineCascade, createCascadeDraw, createCascadeScratch, type CascadeDraw } from './cascade.js';
 import { smearedPond, type DeterministicDam, type DrawOutcome } from './engine.js';
@@ -97,12 +97,12 @@ export function runScenarioDraws(args: {
     const det = shares[d] ?? null;
     for (let k = 0; k < N; k++) {
       const level = levels[d * N + k]!;
-      if (det && Math.min(level, fill.topLevelM) === fill.waterLevelM) {
+      if (det && (fill.escapeKind !== null ? level : Math.min(level, fill.topLevelM)) === inp.waterLevelM) {
         area[d * N + k] = det.areaM2;
         volume[d * N + k] = det.volumeM3;
         continue;
       }
-      const own = sw > 0 ? smearedPond(fill, level, sw) : pondAt(fill, level);
+      const own = sw > 0 ? smearedPond(fill, level, sw) : pondAtExtended(fill, level);
       area[d * N + k] = own.areaM2;
       volume[d * N + k] = own.volumeM3;
     }
@@ -124,7 +124,7 @@ export function runScenarioDraws(args: {
         draw.levelM[p] = levels[d * N + k]!;
         draw.included[p] = inc ? 1 : 0;
         if (inc !== detInc) deterministic = false;
-        else if (inc && (Math.min(draw.levelM[p]!, fill.topLevelM) !== fill.waterLevelM || (termsAtDet !== null && termsAtDet[d * N + k] === 0))) deterministic = false;
+        else if (inc && (Math.min(draw.levelM[p]!, fill.topLevelM) !== sc!.dams[d]!.waterLevelM || (termsAtDet !== null && termsAtDet[d * N + k] === 0))) deterministic = false;
       }
       if (deterministic) {
         for (const d of members) {
