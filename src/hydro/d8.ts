@@ -44,6 +44,7 @@ export function flowDirections(
   const off = neighbourOffsets(width);
   const dist = new Float64Array(8);
   const invDist = new Float64Array(8);
+  let flats = new Int32Array(1024); // flat cells in row-major order
   let flatCount = 0;
   for (let r = 0; r < height; r++) {
     neighbourDistancesM(grid.cellWidthM, grid.cellHeightM, r, dist);
@@ -82,15 +83,23 @@ export function flowDirections(
         dir[i] = DIR_OUTLET;
       } else {
         dir[i] = DIR_FLAT;
-        flatCount++;
+        if (flatCount === flats.length) flats = grown(flats);
+        flats[flatCount++] = i;
       }
     }
   }
   let pitCells = 0;
   if (flatCount > 0) {
-    pitCells = resolveFlats(grid, filledZ, dir, flatCount);
+    pitCells = resolveFlats(grid, filledZ, dir, flats.subarray(0, flatCount));
   }
   return { dir, flatCells: flatCount - pitCells, pitCells };
+}
+
+/** The same list with twice the room. */
+function grown(list: Int32Array): Int32Array<ArrayBuffer> {
+  const out = new Int32Array(list.length * 2);
+  out.set(list);
+  return out;
 }
 
 /**

@@ -14,94 +14,123 @@
  *
  * A flat with no cell that can drain (a pit of an unfilled DEM) is left as
  * `DIR_NONE`.
+ *
+ * Layout: the flat cells are numbered 0…F−1 in row-major order (the paper's
+ * flat mask and labels become arrays of F entries). One row-major pass over
+ * the flat cells records, per cell, its eight neighbours as seen from the
+ * flat: the number of a neighbour in the same flat, or whether it is a cell
+ * at the same elevation that drains, or neither. The labelling, both
+ * breadth-first searches and the final directions then read only these
+ * compact arrays, which stay in cache where full-grid rasters do not.
  */
 import type { Grid } from '../grid/grid.js';
-import { DIR_COL, DIR_FLAT as FLAT, DIR_NONE, DIR_ROW, neighbourDistancesM, neighbourOffsets } from './neighbours.js';
+import { DIR_COL, DIR_FLAT as FLAT, DIR_NONE, DIR_ROW, neighbourOffsets, neighbourDistancesM } from './neighbours.js';
+
+/** Neighbour slot: not in this flat and not a draining cell at the flat's elevation. */
+const NO_LINK = -1;
+/** Neighbour slot: a cell at the flat's elevation that already drains (a way out of the flat). */
+const DRAIN = -2;
 
 /**
- * Routes every `FLAT`-marked cell of `dir` (in place) and returns the number
- * of flat cells that could not drain (left `DIR_NONE`).
+ * Routes the flat cells `flats` (flat indices in row-major order, each
+ * marked `DIR_FLAT` in `dir`) in place and returns the number of flat cells
+ * that could not drain (left `DIR_NONE`).
  */
 export function resolveFlats(
   grid: Pick<Grid, 'width' | 'height' | 'cellWidthM' | 'cellHeightM'>,
   z: Float32Array,
   dir: Uint8Array,
-  flatCount: number,
+  flats: Int32Array,
 ): number {
   const { width, height } = grid;
-  const n = width * height;
+  const count = flats.length;
   const off = neighbourOffsets(width);
-  const flats = new Int32Array(flatCount);
-  let k = 0;
-  for (let i = 0; i < n; i++) if (dir[i] === FLAT) flats[k++] = i;
+  // 1 + flat number of each flat cell, 0 elsewhere.
+  const number = new Int32Array(width * height);
+  for (let f = 0; f < count; f++) number[flats[f]!] = f + 1;
+
+  // Neighbour links (flat number, DRAIN or NO_LINK) and edge kinds: bit 1,
+  // next to higher ground; bit 2, next to a cell at this elevation that drains.
+  const link = new Int32Array(8 * count);
+  const edgeKind = new Uint8Array(count);
+  for (let f = 0; f < count; f++) {
+    const cell = flats[f]!;
+    const zc = z[cell]!;
+    const r = (cell / width) | 0;
+    const c = cell - r * width;
+    const interior = r > 0 && c > 0 && r < height - 1 && c < width - 1;
+    let kind = 0;
+    for (let d = 0; d < 8; d++) {
+      const slot = 8 * f + d;
+      link[slot] = NO_LINK;
+      if (!interior && !inside(r, c, d, width, height)) continue;
+      const nb = cell + off[d]!;
+      const zn = z[nb]!;
+      const k = number[nb]!;
+      if (k !== 0 && zn === zc) {
+        link[slot] = k - 1;
+      } else if (zn > zc) {
+        kind |= 1;
+      } else if (zn === zc && dir[nb] !== FLAT && dir[nb] !== DIR_NONE) {
+        kind |= 2;
+        link[slot] = DRAIN;
+      }
+    }
+    edgeKind[f] = kind;
+  }
 
   // 1. Label each flat (connected cells of equal elevation); `queue` doubles as the flood stack.
-  const label = new Int32Array(n);
-  const queue = new Int32Array(flatCount);
+  const label = new Int32Array(count);
+  const queue = new Int32Array(count);
   let labels = 0;
-  for (let f = 0; f < flatCount; f++) {
-    const start = flats[f] ?? 0;
-    if (label[start] !== 0) continue;
+  for (let f = 0; f < count; f++) {
+    if (label[f] !== 0) continue;
     labels++;
-    label[start] = labels;
-    const zf = z[start] ?? 0;
+    label[f] = labels;
     let top = 0;
-    queue[top++] = start;
+    queue[top++] = f;
     while (top > 0) {
-      const cell = queue[--top] ?? 0;
-      const r = (cell / width) | 0;
-      const c = cell - r * width;
-      const interior = r > 0 && c > 0 && r < height - 1 && c < width - 1;
-      for (let d = 0; d < 8; d++) {
-        if (!interior && !inside(r, c, d, width, height)) continue;
-        const nb = cell + (off[d] ?? 0);
-        if (label[nb] !== 0 || dir[nb] !== FLAT || z[nb] !== zf) continue;
-        label[nb] = labels;
-        queue[top++] = nb;
+      const g = queue[--top]!;
+      for (let s = 8 * g; s < 8 * g + 8; s++) {
+        const h = link[s]!;
+        if (h < 0 || label[h] !== 0) continue;
+        label[h] = labels;
+        queue[top++] = h;
       }
     }
   }
 
   // 2. Steps from higher ground (breadth-first from flat cells next to a higher cell).
-  const mask = new Int32Array(n);
+  const mask = new Int32Array(count);
   const maxHigh = new Int32Array(labels + 1);
-  // Edge cells of each flat: next to higher ground (flag 1) and/or next to a cell that drains (flag 2).
-  const edgeKind = new Uint8Array(flatCount);
   let tail = 0;
-  for (let f = 0; f < flatCount; f++) {
-    const cell = flats[f] ?? 0;
-    const kind = flatEdgeKind(cell, z, dir, width, height, off);
-    edgeKind[f] = kind;
-    if ((kind & 1) !== 0) {
-      mask[cell] = 1;
-      queue[tail++] = cell;
+  for (let f = 0; f < count; f++) {
+    if ((edgeKind[f]! & 1) !== 0) {
+      mask[f] = 1;
+      queue[tail++] = f;
     }
   }
   for (let head = 0; head < tail; head++) {
-    const cell = queue[head] ?? 0;
-    const lab = label[cell] ?? 0;
-    const next = (mask[cell] ?? 0) + 1;
-    if ((mask[cell] ?? 0) > (maxHigh[lab] ?? 0)) maxHigh[lab] = mask[cell] ?? 0;
-    const r = (cell / width) | 0;
-    const c = cell - r * width;
-    const interior = r > 0 && c > 0 && r < height - 1 && c < width - 1;
-    for (let d = 0; d < 8; d++) {
-      if (!interior && !inside(r, c, d, width, height)) continue;
-      const nb = cell + (off[d] ?? 0);
-      if (label[nb] !== lab || mask[nb] !== 0) continue;
-      mask[nb] = next;
-      queue[tail++] = nb;
+    const g = queue[head]!;
+    const lab = label[g]!;
+    const steps = mask[g]!;
+    if (steps > maxHigh[lab]!) maxHigh[lab] = steps;
+    for (let s = 8 * g; s < 8 * g + 8; s++) {
+      const h = link[s]!;
+      if (h < 0 || mask[h] !== 0) continue;
+      mask[h] = steps + 1;
+      queue[tail++] = h;
     }
   }
 
-  // 3. Steps towards lower ground, combined into the final surface; visited cells get a negated label.
+  // 3. Steps towards lower ground, combined into the final surface in `mask`.
+  const reached = new Uint8Array(count);
   tail = 0;
-  for (let f = 0; f < flatCount; f++) {
-    const cell = flats[f] ?? 0;
-    if (((edgeKind[f] ?? 0) & 2) !== 0) {
-      mask[cell] = 2 + (maxHigh[label[cell] ?? 0] ?? 0) - (mask[cell] ?? 0);
-      label[cell] = -(label[cell] ?? 0);
-      queue[tail++] = cell;
+  for (let f = 0; f < count; f++) {
+    if ((edgeKind[f]! & 2) !== 0) {
+      mask[f] = 2 + maxHigh[label[f]!]! - mask[f]!;
+      reached[f] = 1;
+      queue[tail++] = f;
     }
   }
   let head = 0;
@@ -110,18 +139,14 @@ export function resolveFlats(
     const layerEnd = tail;
     step++;
     for (; head < layerEnd; head++) {
-      const cell = queue[head] ?? 0;
-      const lab = -(label[cell] ?? 0);
-      const r = (cell / width) | 0;
-      const c = cell - r * width;
-      const interior = r > 0 && c > 0 && r < height - 1 && c < width - 1;
-      for (let d = 0; d < 8; d++) {
-        if (!interior && !inside(r, c, d, width, height)) continue;
-        const nb = cell + (off[d] ?? 0);
-        if (label[nb] !== lab) continue;
-        mask[nb] = 2 * step + (maxHigh[lab] ?? 0) - (mask[nb] ?? 0);
-        label[nb] = -lab;
-        queue[tail++] = nb;
+      const g = queue[head]!;
+      const top = maxHigh[label[g]!]!;
+      for (let s = 8 * g; s < 8 * g + 8; s++) {
+        const h = link[s]!;
+        if (h < 0 || reached[h] !== 0) continue;
+        mask[h] = 2 * step + top - mask[h]!;
+        reached[h] = 1;
+        queue[tail++] = h;
       }
     }
   }
@@ -130,33 +155,26 @@ export function resolveFlats(
   const dist = new Float64Array(8);
   let distRow = -1;
   let pits = 0;
-  for (let f = 0; f < flatCount; f++) {
-    const cell = flats[f] ?? 0;
-    const lab = label[cell] ?? 0;
-    if (lab > 0) {
+  for (let f = 0; f < count; f++) {
+    const cell = flats[f]!;
+    if (reached[f] === 0) {
       dir[cell] = DIR_NONE;
       pits++;
       continue;
     }
     const r = (cell / width) | 0;
-    const c = cell - r * width;
     if (r !== distRow) {
       neighbourDistancesM(grid.cellWidthM, grid.cellHeightM, r, dist); // flats are in row order
       distRow = r;
     }
-    const m = mask[cell] ?? 0;
-    const zc = z[cell] ?? 0;
+    const m = mask[f]!;
     let best = 0;
     let bestDir = DIR_NONE;
-    const interior = r > 0 && c > 0 && r < height - 1 && c < width - 1;
     for (let d = 0; d < 8; d++) {
-      if (!interior && !inside(r, c, d, width, height)) continue;
-      const nb = cell + (off[d] ?? 0);
-      let value: number;
-      if (label[nb] === lab) value = mask[nb] ?? 0;
-      else if (label[nb] === 0 && z[nb] === zc && dir[nb] !== FLAT && dir[nb] !== DIR_NONE) value = 0;
-      else continue;
-      const slope = (m - value) / (dist[d] ?? 1);
+      const h = link[8 * f + d]!;
+      if (h === NO_LINK) continue;
+      const value = h === DRAIN ? 0 : mask[h]!;
+      const slope = (m - value) / dist[d]!;
       if (slope > best) {
         best = slope;
         bestDir = d;
@@ -170,31 +188,7 @@ export function resolveFlats(
 
 /** Whether neighbour `d` of (r, c) lies on the grid. */
 function inside(r: number, c: number, d: number, width: number, height: number): boolean {
-  const rr = r + (DIR_ROW[d] ?? 0);
-  const cc = c + (DIR_COL[d] ?? 0);
+  const rr = r + DIR_ROW[d]!;
+  const cc = c + DIR_COL[d]!;
   return rr >= 0 && cc >= 0 && rr < height && cc < width;
-}
-
-/** Bit 1: the flat cell has a higher valid neighbour; bit 2: an equal-elevation neighbour that already drains. */
-function flatEdgeKind(
-  cell: number,
-  z: Float32Array,
-  dir: Uint8Array,
-  width: number,
-  height: number,
-  off: Int32Array,
-): number {
-  const r = (cell / width) | 0;
-  const c = cell - r * width;
-  const zc = z[cell] ?? 0;
-  const interior = r > 0 && c > 0 && r < height - 1 && c < width - 1;
-  let kind = 0;
-  for (let d = 0; d < 8; d++) {
-    if (!interior && !inside(r, c, d, width, height)) continue;
-    const nb = cell + (off[d] ?? 0);
-    const zn = z[nb] ?? NaN;
-    if (zn > zc) kind |= 1;
-    else if (zn === zc && dir[nb] !== FLAT && dir[nb] !== DIR_NONE) kind |= 2;
-  }
-  return kind;
 }
