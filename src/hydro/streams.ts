@@ -42,12 +42,17 @@ export interface StreamLinks {
   readonly junctions: Int32Array;
 }
 
-/** Splits the stream cells into links, using D8 `dir` and the upstream-first `order` of {@link flowOrder}. */
+/**
+ * Splits the stream cells into links, using D8 `dir` and the upstream-first
+ * `order` of {@link flowOrder}, or only the stream cells of that order
+ * (order.ts `flowRouting` lists them): cells off the stream are skipped.
+ */
 export function streamLinks(dir: Uint8Array, order: Int32Array, stream: Uint8Array, width: number): StreamLinks {
   const n = dir.length;
   const off = neighbourOffsets(width);
   const streamDonors = new Uint8Array(n);
-  for (let i = 0; i < n; i++) {
+  for (let k = 0; k < order.length; k++) {
+    const i = order[k]!;
     const d = dir[i] ?? DIR_NONE;
     if (stream[i] === 1 && d < 8) {
       const r = i + (off[d] ?? 0);

@@ -4,15 +4,14 @@
  * bottom. Each piece is also exported on its own.
  */
 import type { Grid } from '../grid/grid.js';
-import { flowAccumulationM2 } from './accumulation.js';
 import { flowDirections } from './d8.js';
+import { drainageRasters } from './drainage.js';
 import { fillDepressions, type FillOptions } from './fill.js';
-import { heightAboveDrainage, type HandResult } from './hand.js';
-import { flowOrder } from './order.js';
+import type { HandResult } from './hand.js';
+import { flowRouting } from './order.js';
 import { streamLengthM } from './stream-length.js';
-import { DEFAULT_STREAM_THRESHOLD_M2, streamLinks, streamMask, type StreamLinks } from './streams.js';
-import { valleyBottom, type ValleyBottomOptions } from './valley-bottom.js';
-import { subWatersheds } from './watersheds.js';
+import { DEFAULT_STREAM_THRESHOLD_M2, streamLinks, type StreamLinks } from './streams.js';
+import type { ValleyBottomOptions } from './valley-bottom.js';
 
 /** Options of {@link analyseTerrain}. */
 export interface TerrainOptions {
@@ -56,14 +55,14 @@ export interface Terrain {
 export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrain {
   const fill = fillDepressions(grid, options.fill);
   const flow = flowDirections(grid, fill.filledZ);
-  const order = flowOrder(flow.dir, fill.filledZ, grid.width);
-  const accumulationM2 = flowAccumulationM2(grid, flow.dir, order);
-  const stream = streamMask(accumulationM2, options.streamThresholdM2 ?? DEFAULT_STREAM_THRESHOLD_M2);
-  const links = streamLinks(flow.dir, order, stream, grid.width);
+  // Order, contributing area and stream mask in one walk; links from the stream cells alone.
+  const routing = flowRouting(grid, flow.dir, fill.filledZ, options.streamThresholdM2 ?? DEFAULT_STREAM_THRESHOLD_M2);
+  const { order, accumulationM2, stream } = routing;
+  const links = streamLinks(flow.dir, routing.streamCells, stream, grid.width);
   const lengths = streamLengthM(grid, flow.dir, stream);
-  const watershed = subWatersheds(flow.dir, order, links, grid.width);
   const handZ = options.handSurface === 'filled' ? fill.filledZ : grid.z;
-  const hand = heightAboveDrainage(handZ, flow.dir, order, stream, grid.width);
+  // HAND, link watersheds and valley bottom in one pass up the order.
+  const drained = drainageRasters(handZ, flow.dir, order, stream, links.link, accumulationM2, grid.width, options.valleyBottom);
   return {
     filledZ: fill.filledZ,
     dir: flow.dir,
@@ -72,9 +71,9 @@ export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrai
     stream,
     links,
     streamLengthM: lengths,
-    watershed,
-    hand,
-    valleyBottom: valleyBottom(hand, accumulationM2, options.valleyBottom),
+    watershed: drained.watershed,
+    hand: drained.hand,
+    valleyBottom: drained.valleyBottom,
     stats: { raisedCells: fill.raisedCells, flatCells: flow.flatCells, pitCells: flow.pitCells },
   };
 }
