@@ -25,13 +25,13 @@ import { DEFAULT_POND_PARAMS } from '../src/ponds/params.js';
 import { floodedCount, pondAt } from '../src/ponds/stage-storage.js';
 import { setupAndFill } from '../src/ponds/upstream-by-fill.js';
 import { percentileStandardError, quantileSorted } from '../src/uncertainty/bands.js';
-import { supportCovariance, supportSize } from '../src/uncertainty/covariance.js';
-import { drawnLevelM, passError, referenceError } from '../src/uncertainty/dem-error.js';
+import { buildSupport, sphericalCovariance, supportCovariance, supportSize } from '../src/uncertainty/covariance.js';
+import { alternativesGivenReference, drawnLevelM, passError, referenceError } from '../src/uncertainty/dem-error.js';
 import { smearedPond } from '../src/uncertainty/engine.js';
 import { createFieldSimulator, simulateFieldPair } from '../src/uncertainty/field.js';
 import { defaultUncertaintyParams, zeroVarianceParams, type UncertaintyParams } from '../src/uncertainty/params.js';
 import { createDrawPrep, type DamDrawInput } from '../src/uncertainty/prepare.js';
-import { createRng } from '../src/uncertainty/random.js';
+import { createRng, normal } from '../src/uncertainty/random.js';
 import { memoryDem } from './helpers/memory-dem.js';
 import { REFERENCE_VALLEY, makeDam, referenceChannelCol, referenceDams, referenceValley } from './helpers/synthetic.js';
 
@@ -98,7 +98,7 @@ function compare(dams: DamInput[]): Map<string, { full: Float64Array; fast: Floa
         const again = setupAndFill(perturbed, p.dam, crest, DEFAULT_POND_PARAMS, {}, scratch);
         if ('skip' in again) throw new Error(again.skip.message);
         p.full.push(pondAt(again.fill, again.fill.waterLevelM).volumeM3);
-        // The fast path, fed e′ = −e: [e_ref, ē, points...] of the dam's support, then its level and smeared pond.
+        // The fast path, fed e′ = −e: [e_ref, ē, passes...] and the alternatives of the dam's support, then its level and smeared pond.
         const s = p.input.support!;
         const v = new Float64Array(supportSize(s));
         v[0] = -e[s.refRow * grid.width + s.refCol]!;
@@ -106,7 +106,8 @@ function compare(dams: DamInput[]): Map<string, { full: Float64Array; fast: Floa
         for (let k = 0; k < p.cells.length; k++) sum -= e[p.cells[k]!]!;
         v[1] = sum / p.cells.length;
         for (let j = 0; j < s.pointCol.length; j++) v[2 + j] = -e[s.pointRow[j]! * grid.width + s.pointCol[j]!]!;
-        const level = drawnLevelM(p.input.crestElevM, p.input.escapeLevelM, referenceError(s, v, 0), v[1]!, passError(s, v, 0));
+        const alts = Float64Array.from(s.altCol, (c, j) => -e[s.altRow[j]! * grid.width + c]!);
+        const level = drawnLevelM(p.input.crestElevM, p.input.escapeLevelM, referenceError(s, v[0]!, alts), v[1]!, passError(s, v, 0));
         p.fast.push(smearedPond(p.input.fill, level, p.withinSd).volumeM3);
       }
     }
@@ -162,6 +163,54 @@ describe('DEM error: the fast path against full re-flooding', () => {
         expect(v).toBeLessThan(ci.high * 1.02);
       }
       expect(out.outcome.monteCarlo.floodTopHits).toBe(0);
+    }
+  });
+});
+
+describe('alternatives to the reference, drawn given its error', () => {
+  it('have the covariances of the spherical model with the reference and among themselves (within sampling error)', () => {
+    // Reference at cell (10, 10) of a 40-column window; alternatives 1, 3 and 6 m east and 2 m north.
+    const width = 40;
+    const at = (col: number, row: number): number => row * width + col;
+    const s = buildSupport({
+      cells: new Int32Array(0),
+      width,
+      colOffset: 0,
+      rowOffset: 0,
+      cellAreaM2: new Float64Array(40).fill(1),
+      refCell: at(10, 10),
+      cellWM: 1,
+      cellHM: 1,
+      blockM: 5,
+      altCells: Int32Array.of(at(11, 10), at(13, 10), at(16, 10), at(10, 8)),
+      altDeltaM: Float64Array.of(0, 0.05, 0.1, 0.2),
+    });
+    const sill = SIGMA_M * SIGMA_M;
+    const { gain, lower } = alternativesGivenReference(s, sill, RANGE_M);
+    const n = 4;
+    const draws = 40000;
+    const rng = createRng(7);
+    const sums = new Float64Array((n + 1) * (n + 1));
+    const e = new Float64Array(n + 1);
+    for (let k = 0; k < draws; k++) {
+      e[0] = SIGMA_M * normal(rng);
+      const z = Array.from({ length: n }, () => normal(rng));
+      for (let a = 0; a < n; a++) {
+        let r = 0;
+        for (let b = 0; b <= a; b++) r += lower[a * n + b]! * z[b]!;
+        e[a + 1] = gain[a]! * e[0]! + r;
+      }
+      for (let i = 0; i <= n; i++) for (let j = 0; j <= n; j++) sums[i * (n + 1) + j]! += e[i]! * e[j]!;
+    }
+    // Positions: the reference, then the alternatives (cells of 1 m).
+    const pos = [[10, 10], [11, 10], [13, 10], [16, 10], [10, 8]] as const;
+    for (let i = 0; i <= n; i++) {
+      for (let j = 0; j <= n; j++) {
+        // The model: C(h) = σ²(1 − 3h/2L + h³/2L³) (spherical; Journel & Huijbregts 1978).
+        const model = sphericalCovariance(Math.hypot(pos[i]![0] - pos[j]![0], pos[i]![1] - pos[j]![1]), sill, RANGE_M);
+        // A sample covariance of n Gaussian pairs has a standard error of at most σ²·√(2/n): 0.7 % here.
+        expect(Math.abs(sums[i * (n + 1) + j]! / draws - model)).toBeLessThan(4 * sill * Math.sqrt(2 / draws));
+      }
     }
   });
 });

@@ -97,17 +97,22 @@ export interface ErrorSupport {
   /** Σ block areas, m² (0 for a dry pond: then ē is taken equal to the reference error). */
   areaM2: number;
   /**
-   * Further points whose errors are drawn with the dam's (cell positions):
-   * first the alternatives to the reference, cells nearly as low as it
-   * among those the crest elevation is measured from (`altDeltaM`: their
-   * height above the reference, m), then the passes, the cells whose
-   * elevation sets the escape level by each of the lowest ways out
-   * (`passDeltaM`: their escape level above the lowest, m; the first is 0).
+   * The passes (cell positions), the cells whose elevation sets the escape
+   * level by each of the lowest ways out (`passDeltaM`: their escape level
+   * above the lowest, m; the first is 0). Drawn jointly with every dam.
    */
   pointCol: Float64Array;
   pointRow: Float64Array;
-  altDeltaM: Float64Array;
   passDeltaM: Float64Array;
+  /**
+   * The alternatives to the reference (cell positions): cells nearly as
+   * low as it among those the crest elevation is measured from
+   * (`altDeltaM`: their height above the reference, m). A few metres from
+   * the reference, they are drawn given its error (see dem-error.ts).
+   */
+  altCol: Float64Array;
+  altRow: Float64Array;
+  altDeltaM: Float64Array;
   /** Bounding box of the reference, the points and the blocks, cell positions. */
   col0: number;
   col1: number;
@@ -142,23 +147,27 @@ export function buildSupport(args: {
   const refRow = Math.floor(args.refCell / width) + rowOffset;
   const altCells = args.altCells ?? new Int32Array(0);
   const passCells = args.passCells ?? new Int32Array(0);
-  const nPoints = altCells.length + passCells.length;
-  const pointCol = new Float64Array(nPoints);
-  const pointRow = new Float64Array(nPoints);
   let pc0 = refCol;
   let pc1 = refCol;
   let pr0 = refRow;
   let pr1 = refRow;
-  for (let k = 0; k < nPoints; k++) {
-    const i = k < altCells.length ? altCells[k]! : passCells[k - altCells.length]!;
-    pointCol[k] = (i % width) + colOffset;
-    pointRow[k] = Math.floor(i / width) + rowOffset;
-    pc0 = Math.min(pc0, pointCol[k]!);
-    pc1 = Math.max(pc1, pointCol[k]!);
-    pr0 = Math.min(pr0, pointRow[k]!);
-    pr1 = Math.max(pr1, pointRow[k]!);
-  }
-  const points = { pointCol, pointRow, altDeltaM: args.altDeltaM ?? new Float64Array(0), passDeltaM: args.passDeltaM ?? new Float64Array(0) };
+  const positions = (list: Int32Array): [Float64Array, Float64Array] => {
+    const cs = new Float64Array(list.length);
+    const rs = new Float64Array(list.length);
+    for (let k = 0; k < list.length; k++) {
+      const i = list[k]!;
+      cs[k] = (i % width) + colOffset;
+      rs[k] = Math.floor(i / width) + rowOffset;
+      pc0 = Math.min(pc0, cs[k]!);
+      pc1 = Math.max(pc1, cs[k]!);
+      pr0 = Math.min(pr0, rs[k]!);
+      pr1 = Math.max(pr1, rs[k]!);
+    }
+    return [cs, rs];
+  };
+  const [pointCol, pointRow] = positions(passCells);
+  const [altCol, altRow] = positions(altCells);
+  const points = { pointCol, pointRow, passDeltaM: args.passDeltaM ?? new Float64Array(0), altCol, altRow, altDeltaM: args.altDeltaM ?? new Float64Array(0) };
   const { c0, c1, r0, r1 } = cellBounds(cells, width);
   const empty = new Float64Array(0);
   if (cells.length === 0) {
@@ -261,14 +270,30 @@ export function supportCovariance(a: ErrorSupport, b: ErrorSupport, sillM2: numb
   return [rr, rp, pr, pp];
 }
 
-/** Number of jointly drawn errors of a support: the reference, the pond's mean, then its points. */
+/**
+ * Covariances (m²) of a support's alternatives: with its reference
+ * (`withRef`, one per alternative) and among themselves (`among`,
+ * row-major).
+ */
+export function alternativeCovariance(s: ErrorSupport, sillM2: number, rangeM: number): { withRef: Float64Array; among: Float64Array } {
+  const n = s.altCol.length;
+  const withRef = new Float64Array(n);
+  const among = new Float64Array(n * n);
+  for (let a = 0; a < n; a++) {
+    withRef[a] = sphericalCovariance(distM(s, s.altCol[a]!, s.altRow[a]!, s, s.refCol, s.refRow), sillM2, rangeM);
+    for (let b = 0; b < n; b++) among[a * n + b] = sphericalCovariance(distM(s, s.altCol[a]!, s.altRow[a]!, s, s.altCol[b]!, s.altRow[b]!), sillM2, rangeM);
+  }
+  return { withRef, among };
+}
+
+/** Number of jointly drawn errors of a support: the reference, the pond's mean, then its passes. */
 export function supportSize(s: ErrorSupport): number {
   return 2 + s.pointCol.length;
 }
 
 /**
  * Covariances (m²) between the errors of two supports, row-major
- * supportSize(a) × supportSize(b): [reference, pond mean, points...] of `a`
+ * supportSize(a) × supportSize(b): [reference, pond mean, passes...] of `a`
  * against the same of `b`. For a dry pond the pond's mean error is its
  * reference error. The first 2 × 2 equal supportCovariance.
  */

@@ -32,7 +32,8 @@
  * elevation hangs on the lowest of a set of cells (the crest's cells, or the
  * downstream probe's for a DEM-visible dam whose height is given): cells
  * nearly as low as the reference (within four standard deviations of the
- * error difference, prepare.ts referenceAlternatives) are drawn with it, and
+ * error difference, prepare.ts referenceAlternatives) are drawn given its
+ * error (they lie a few metres from it), and
  * the lowest of them on the true ground sets the crest: the effective
  * reference error is max(e_ref, max_j(e_j − Δz_j)). Two equally low crest
  * cells, common in a channel, lower the crest on average by about
@@ -62,7 +63,7 @@
  * the way out more than its pass shows.
  */
 import { normal, createRng, deriveSeed } from './random.js';
-import { supportCovarianceBlock, supportGapM, supportSize, type ErrorSupport } from './covariance.js';
+import { alternativeCovariance, supportCovarianceBlock, supportGapM, supportSize, type ErrorSupport } from './covariance.js';
 
 /** Per-dam draws of the reference error, the pond's mean error and the pass's error, m; dam-major (d·draws + k). */
 export interface DemErrorDraws {
@@ -92,9 +93,10 @@ export interface DemErrorDraws {
 
 /**
  * Draws the errors of every dam with a support (null: no DEM error, zeros):
- * per dam its reference, its pond's mean and its points (supportSize), all
- * jointly Gaussian across dams closer than the range, reduced to the three
- * numbers of DemErrorDraws. Each dam's standard normals come from its own
+ * per dam its reference, its pond's mean and its passes (supportSize), all
+ * jointly Gaussian across dams closer than the range, then its reference's
+ * alternatives given the reference's error; reduced to the three numbers
+ * of DemErrorDraws. Each dam's standard normals come from its own
  * stream (seed, 'dem-error', id), so a dam's draws do not depend on the
  * order of the inventory.
  */
@@ -164,29 +166,63 @@ export function drawDemErrors(args: {
         const d = comp[p]!;
         const sup = supports[d]!;
         const o = start[p]!;
-        refErrorM[d * draws + k] = referenceError(sup, e, o);
+        refErrorM[d * draws + k] = e[o]!;
         meanErrorM[d * draws + k] = e[o + 1]!;
         passErrorM[d * draws + k] = passError(sup, e, o);
       }
     }
   }
+  // The alternatives to each reference, given its error: the effective reference error.
+  supports.forEach((sup, d) => {
+    if (!sup || sup.altDeltaM.length === 0) return;
+    const { gain, lower } = alternativesGivenReference(sup, sill, rangeM);
+    const n = sup.altDeltaM.length;
+    const rng = createRng(deriveSeed(seed, 'dem-error-alternatives', ids[d]!));
+    const z = new Float64Array(n);
+    const alt = new Float64Array(n);
+    for (let k = 0; k < draws; k++) {
+      const eRef = refErrorM[d * draws + k]!;
+      for (let a = 0; a < n; a++) z[a] = normal(rng);
+      for (let a = 0; a < n; a++) {
+        let r = 0;
+        for (let b = 0; b <= a; b++) r += lower[a * n + b]! * z[b]!;
+        alt[a] = gain[a]! * eRef + r;
+      }
+      refErrorM[d * draws + k] = referenceError(sup, eRef, alt);
+    }
+  });
   return { refErrorM, meanErrorM, passErrorM, withinSdM, components, largestComponent: largest, clippedPivots: clipped };
 }
 
 /**
- * The reference's effective error (m) from one dam's errors `e[o..]` =
- * [e_ref, ē, points...] (supportSize of them): max(e_ref, max_j(e_j − Δz_j))
- * over its alternatives.
+ * The reference's effective error (m) from its own error and its
+ * alternatives' (one per alternative): max(e_ref, max_j(e_j − Δz_j)).
  */
-export function referenceError(s: ErrorSupport, e: ArrayLike<number>, o: number): number {
-  let ref = e[o]!;
-  for (let j = 0; j < s.altDeltaM.length; j++) ref = Math.max(ref, e[o + 2 + j]! - s.altDeltaM[j]!);
+export function referenceError(s: ErrorSupport, eRefM: number, altErrorsM: ArrayLike<number>): number {
+  let ref = eRefM;
+  for (let j = 0; j < s.altDeltaM.length; j++) ref = Math.max(ref, altErrorsM[j]! - s.altDeltaM[j]!);
   return ref;
 }
 
-/** The passes' effective error (m) from the same vector: max_j(e_j − Δ_j) over the passes; 0 without one. */
+/**
+ * The alternatives' errors given the reference's, e_alt = gain·e_ref + L·z
+ * (z standard normal): the Gaussian conditional on the reference alone.
+ * The alternatives lie a few metres from the reference, so what they share
+ * with the pond and with other dams passes through it.
+ */
+export function alternativesGivenReference(s: ErrorSupport, sillM2: number, rangeM: number): { gain: Float64Array; lower: Float64Array } {
+  const { withRef, among } = alternativeCovariance(s, sillM2, rangeM);
+  const n = withRef.length;
+  const gain = new Float64Array(n);
+  for (let a = 0; a < n; a++) gain[a] = withRef[a]! / sillM2;
+  const cond = new Float64Array(n * n);
+  for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) cond[a * n + b] = among[a * n + b]! - (withRef[a]! * withRef[b]!) / sillM2;
+  return { gain, lower: cholesky(cond, n).lower };
+}
+
+/** The passes' effective error (m) from one dam's jointly drawn errors `e[o..]` = [e_ref, ē, passes...]: max_j(e_j − Δ_j); 0 without a pass. */
 export function passError(s: ErrorSupport, e: ArrayLike<number>, o: number): number {
-  const first = o + 2 + s.altDeltaM.length;
+  const first = o + 2;
   if (s.passDeltaM.length === 0) return 0;
   let pass = -Infinity;
   for (let j = 0; j < s.passDeltaM.length; j++) pass = Math.max(pass, e[first + j]! - s.passDeltaM[j]!);

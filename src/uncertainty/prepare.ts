@@ -204,8 +204,11 @@ function mayCount(m: GroupMember, u: UncertaintyParams): boolean {
 function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boolean, floodTopM: number, scratch: FillScratch | undefined): DamDrawInput {
   const setup = m.setup!;
   const escapeLevelM = m.fill!.escapeKind !== null ? m.fill!.escapeLevelM : Infinity;
-  // With the DEM error on, a pond that escapes gets its next ways out and a fill with the lowest closed.
-  const routes = demOn && setup.holdsWater && m.fill!.escapeKind !== null ? escapeRoutes(grid, setup, m.fill!, floodTopM, m.reachBox, u.demRmseM, scratch) : null;
+  // With the DEM error on, a pond whose water escapes below its crest gets its next ways out and a fill with
+  // them closed. (A pond held by its crest whose fill escapes higher up, within the draws' reach, keeps the
+  // one pass: few draws reach it, and finding the others would cost a flood each for every such dam.)
+  const escapeLimited = m.fill!.escapeKind !== null && m.fill!.limitedBy !== 'crest';
+  const routes = demOn && setup.holdsWater && escapeLimited ? escapeRoutes(grid, setup, m.fill!, floodTopM, m.reachBox, u.demRmseM, scratch) : null;
   const fill = routes ? routes.fill : m.fill!;
   const z = grid.z;
   const n = fill.order.length;
@@ -235,8 +238,8 @@ function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boole
       blockM: u.demErrorRangeM / 4,
       altCells: alts.cells,
       altDeltaM: alts.deltaM,
-      passCells: routes?.passCells,
-      passDeltaM: routes?.passDeltaM,
+      passCells: routes?.passCells ?? (fill.escapeKind !== null ? Int32Array.of(fill.escapePassCell) : undefined),
+      passDeltaM: routes?.passDeltaM ?? (fill.escapeKind !== null ? Float64Array.of(0) : undefined),
     });
   }
   return {
@@ -565,9 +568,18 @@ export function escapeRoutes(
   const reachM = ALTERNATIVE_SDS * Math.SQRT2 * sigmaM;
   const passes = [fill.escapePassCell];
   const deltas = [0];
+  // A pass where the flood starts (a seed cell) lets the water out at once: no other way out to close.
+  const seeds = new Set(setup.seedCells);
+  if (seeds.has(fill.escapePassCell)) return { passCells: Int32Array.from(passes), passDeltaM: Float64Array.from(deltas), fill };
   const options = { maxLevelM: Math.max(floodTopM, fill.topLevelM), ...(reachBox ? { reachBox } : {}) };
   let closed = fillBehindCrest(grid, setup, { ...options, wallCells: Int32Array.from(passes) }, scratch);
-  while (closed.escapeKind !== null && passes.length < MAX_ESCAPE_ROUTES && closed.escapeLevelM - first < reachM && closed.escapePassCell >= 0) {
+  while (
+    closed.escapeKind !== null &&
+    passes.length < MAX_ESCAPE_ROUTES &&
+    closed.escapeLevelM - first < reachM &&
+    closed.escapePassCell >= 0 &&
+    !seeds.has(closed.escapePassCell)
+  ) {
     passes.push(closed.escapePassCell);
     deltas.push(closed.escapeLevelM - first);
     closed = fillBehindCrest(grid, setup, { ...options, wallCells: Int32Array.from(passes) }, scratch);
