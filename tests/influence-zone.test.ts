@@ -6,7 +6,9 @@ import {
   INFLUENCE_INUNDATED,
   INFLUENCE_RIPARIAN,
   influenceZone,
+  influenceZoneOfCells,
 } from '../src/influence/zone.js';
+import { createRng } from '../src/uncertainty/random.js';
 
 /** A square grid of `n` cells of `cellM` metres with the centre of cell (mid, mid) at map (0, 0). */
 function centredGrid(n: number, cellM: number, zOf: (x: number, y: number) => number): { grid: Grid; xs: Float64Array; ys: Float64Array } {
@@ -145,5 +147,93 @@ describe('influenceZone', () => {
     const res = influenceZone(grid, new Float32Array(100).fill(NaN));
     expect(res.influenceAreaM2).toBe(0);
     expect(res.classes.every((v) => v === 0)).toBe(true);
+  });
+});
+
+describe('influenceZoneOfCells (pond cells as a list)', () => {
+  /** A rough valley with a few ponds of their own levels and owners. */
+  function scene(seed: number): { grid: Grid; level: Float32Array; owner: Int32Array; valley: Uint8Array } {
+    const rng = createRng(seed);
+    const n = 90;
+    const { grid, xs, ys } = centredGrid(n, 1, (x, y) => 10 + 0.02 * Math.abs(x) + 0.01 * y + 0.5 * Math.sin(x / 3) * Math.cos(y / 4));
+    for (let i = 0; i < grid.z.length; i++) grid.z[i] = grid.z[i]! + 0.3 * rng();
+    const level = new Float32Array(grid.z.length).fill(NaN);
+    const owner = new Int32Array(grid.z.length);
+    const valley = new Uint8Array(grid.z.length);
+    for (let p = 1; p <= 4; p++) {
+      const cx = (rng() - 0.5) * 60;
+      const cy = (rng() - 0.5) * 60;
+      const rad = 3 + rng() * 6;
+      const lev = 10 + rng();
+      for (let i = 0; i < level.length; i++) {
+        if (Math.hypot(xs[i]! - cx, ys[i]! - cy) <= rad) {
+          level[i] = lev;
+          owner[i] = p;
+        }
+      }
+    }
+    for (let i = 0; i < valley.length; i++) valley[i] = Math.abs(xs[i]!) < 35 ? 1 : 0;
+    grid.z[5 * n + 7] = NaN;
+    return { grid, level, owner, valley };
+  }
+
+  it('classifies each dry cell by its brute-force nearest pond cell: within D, at most Δz above its level, in the valley bottom', () => {
+    // Reference: the definition, with the nearest pond cell found by trying every pond cell.
+    for (let trial = 0; trial < 3; trial++) {
+      const { grid, level, owner, valley } = scene(60 + trial);
+      const D = 14;
+      const rise = 0.6;
+      const res = influenceZone(grid, level, { distanceM: D, riseM: rise, valleyBottom: valley, owner });
+      const wet: number[] = [];
+      for (let i = 0; i < level.length; i++) if (!Number.isNaN(level[i]!)) wet.push(i);
+      const n = grid.width;
+      let riparian = 0;
+      let checked = 0;
+      for (let i = 0; i < level.length; i++) {
+        if (!Number.isNaN(level[i]!)) {
+          expect(res.classes[i]).toBe(INFLUENCE_INUNDATED);
+          expect(res.cellOwner?.[i]).toBe(owner[i]);
+          continue;
+        }
+        let best = Infinity;
+        for (const s of wet) best = Math.min(best, Math.hypot((i % n) - (s % n), Math.floor(i / n) - Math.floor(s / n)));
+        const nearestCells = wet.filter((s) => Math.hypot((i % n) - (s % n), Math.floor(i / n) - Math.floor(s / n)) - best < 1e-9);
+        const seed = nearestCells[0]!;
+        // Equally near pond cells of different levels or owners: either may count (ties go to either seed).
+        if (nearestCells.some((s) => level[s] !== level[seed])) continue;
+        checked++;
+        const expected = best <= D && grid.z[i]! <= level[seed]! + rise && valley[i] === 1 ? INFLUENCE_RIPARIAN : 0;
+        expect(res.classes[i]).toBe(expected);
+        if (expected === INFLUENCE_RIPARIAN) {
+          riparian++;
+          if (nearestCells.every((s) => owner[s] === owner[seed])) expect(res.cellOwner?.[i]).toBe(owner[seed]);
+        }
+      }
+      expect(checked).toBeGreaterThan(7000);
+      expect(riparian).toBeGreaterThan(100);
+    }
+  });
+
+  it('equals the raster form for cells in any order; a cell listed twice counts once, as its last entry', () => {
+    const { grid, level, owner, valley } = scene(9);
+    const raster = influenceZone(grid, level, { distanceM: 12, riseM: 0.8, valleyBottom: valley, owner, candidates: { distanceMaxM: 16, riseMaxM: 1 } });
+    const wet: number[] = [];
+    for (let i = 0; i < level.length; i++) if (!Number.isNaN(level[i]!)) wet.push(i);
+    const rng = createRng(3);
+    const shuffled = wet.map((i) => ({ i, key: rng() })).sort((a, b) => a.key - b.key).map((e) => e.i);
+    // A decoy entry for the first cell, overridden by the real one listed after it.
+    const cells = Int32Array.from([shuffled[0]!, ...shuffled]);
+    const levelM = Float32Array.from(cells, (i, k) => (k === 0 ? level[i]! - 5 : level[i]!));
+    const owners = Int32Array.from(cells, (i, k) => (k === 0 ? 99 : owner[i]!));
+    const list = influenceZoneOfCells(grid, { cells, levelM, owner: owners }, { distanceM: 12, riseM: 0.8, valleyBottom: valley, candidates: { distanceMaxM: 16, riseMaxM: 1 } });
+    expect(Array.from(list.classes)).toEqual(Array.from(raster.classes));
+    expect(Array.from(list.cellOwner!)).toEqual(Array.from(raster.cellOwner!));
+    expect(list.riparianAreaM2).toBe(raster.riparianAreaM2);
+    expect(list.inundatedAreaM2).toBe(raster.inundatedAreaM2);
+    expect(Array.from(list.byOwner!.riparianAreaM2.subarray(0, 5))).toEqual(Array.from(raster.byOwner!.riparianAreaM2));
+    expect(list.byOwner!.riparianAreaM2[99]).toBe(0);
+    expect(list.candidates!.count).toBe(raster.candidates!.count);
+    expect(Array.from(list.candidates!.cell.subarray(0, list.candidates!.count))).toEqual(Array.from(raster.candidates!.cell.subarray(0, raster.candidates!.count)));
+    expect(raster.riparianAreaM2).toBeGreaterThan(100);
   });
 });

@@ -19,7 +19,7 @@
  * Areas use each row's cell area (m²). NoData cells are never riparian.
  */
 import type { Grid } from '../grid/grid.js';
-import { distanceTransform } from '../grid/distance.js';
+import { NearestSeedSweep } from '../grid/distance.js';
 
 /** Default horizontal reach of the riparian fringe, m (Lowry 1993). */
 export const DEFAULT_RIPARIAN_DISTANCE_M = 50;
@@ -88,12 +88,51 @@ export interface InfluenceResult {
   readonly candidates?: RiparianCandidates;
 }
 
+/** Pond cells as a list: flat indices on the grid, each one's water level and owner. */
+export interface PondCells {
+  /** Flat indices of the wet cells (a cell listed more than once counts once, as its last entry). */
+  cells: Int32Array;
+  /** Water level of each listed cell, m. */
+  levelM: Float32Array;
+  /** Owner id of each listed cell, ≥ 1 (see {@link InfluenceOptions.owner}); omit for totals only. */
+  owner?: Int32Array;
+}
+
 /**
  * Classifies every cell of `grid` given the water level of each pond cell
  * (`waterLevelM`, metres, NaN where dry). Only the window around the ponds
- * (expanded by `distanceM`) is examined.
+ * (expanded by `distanceM`) is examined. The same as
+ * {@link influenceZoneOfCells} on the wet cells in row-major order.
  */
 export function influenceZone(grid: Grid, waterLevelM: Float32Array, options: InfluenceOptions = {}): InfluenceResult {
+  const n = grid.width * grid.height;
+  if (waterLevelM.length !== n) throw new Error(`water level raster has ${waterLevelM.length} cells; expected ${n}`);
+  const { owner, ...rest } = options;
+  let count = 0;
+  for (let i = 0; i < n; i++) if (waterLevelM[i] === waterLevelM[i]) count++;
+  const cells = new Int32Array(count);
+  const levelM = new Float32Array(count);
+  const owners = owner !== undefined ? new Int32Array(count) : undefined;
+  let k = 0;
+  for (let i = 0; i < n; i++) {
+    const level = waterLevelM[i]!;
+    if (level !== level) continue;
+    cells[k] = i;
+    levelM[k] = level;
+    if (owners !== undefined && owner !== undefined) owners[k] = owner[i]!;
+    k++;
+  }
+  return influenceZoneOfCells(grid, owners !== undefined ? { cells, levelM, owner: owners } : { cells, levelM }, rest);
+}
+
+/**
+ * Classifies every cell of `grid` given the pond cells as a list (see
+ * {@link PondCells}). Only the window around the ponds (expanded by the
+ * reach) is examined, a row at a time: the distance to the nearest pond cell
+ * comes from grid/distance.ts `NearestSeedSweep`, so nothing the size of
+ * the window is allocated besides the results.
+ */
+export function influenceZoneOfCells(grid: Grid, ponds: PondCells, options: Omit<InfluenceOptions, 'owner'> = {}): InfluenceResult {
   const { width, height, z, cellAreaM2 } = grid;
   const n = width * height;
   const distanceM = options.distanceM ?? DEFAULT_RIPARIAN_DISTANCE_M;
@@ -101,8 +140,12 @@ export function influenceZone(grid: Grid, waterLevelM: Float32Array, options: In
   if (!(distanceM >= 0) || !(riseM >= 0)) {
     throw new Error(`riparian distance and rise must be ≥ 0 m; got ${distanceM} m and ${riseM} m`);
   }
-  if (waterLevelM.length !== n) throw new Error(`water level raster has ${waterLevelM.length} cells; expected ${n}`);
-  const { valleyBottom, owner } = options;
+  const { valleyBottom } = options;
+  const { cells, levelM: pondLevelM, owner } = ponds;
+  const count = cells.length;
+  if (pondLevelM.length !== count || (owner !== undefined && owner.length !== count)) {
+    throw new Error(`pond cells: ${count} cells, ${pondLevelM.length} levels and ${owner?.length ?? count} owners; expected equal counts`);
+  }
   const classes = new Uint8Array(n);
 
   // Window: pond bounding box grown by the reach.
@@ -111,19 +154,19 @@ export function influenceZone(grid: Grid, waterLevelM: Float32Array, options: In
   let c0 = width;
   let c1 = -1;
   let ownerMax = 0;
-  for (let r = 0; r < height; r++) {
-    for (let c = 0; c < width; c++) {
-      const i = r * width + c;
-      if (Number.isNaN(waterLevelM[i] ?? NaN)) continue;
-      if (r < r0) r0 = r;
-      if (r > r1) r1 = r;
-      if (c < c0) c0 = c;
-      if (c > c1) c1 = c;
-      if (owner !== undefined) {
-        const o = owner[i] ?? 0;
-        if (o < 0) throw new Error(`owner ids must be ≥ 0; cell ${i} has ${o}`);
-        if (o > ownerMax) ownerMax = o;
-      }
+  for (let k = 0; k < count; k++) {
+    const i = cells[k]!;
+    if (!(i >= 0 && i < n)) throw new Error(`pond cell ${i} lies off the ${width} × ${height} grid`);
+    const r = (i / width) | 0;
+    const c = i - r * width;
+    if (r < r0) r0 = r;
+    if (r > r1) r1 = r;
+    if (c < c0) c0 = c;
+    if (c > c1) c1 = c;
+    if (owner !== undefined) {
+      const o = owner[k]!;
+      if (o < 0) throw new Error(`owner ids must be ≥ 0; cell ${i} has ${o}`);
+      if (o > ownerMax) ownerMax = o;
     }
   }
   const cellOwner = owner !== undefined ? new Int32Array(n) : undefined;
@@ -151,42 +194,43 @@ export function influenceZone(grid: Grid, waterLevelM: Float32Array, options: In
   const ww = c1 - c0 + 1;
   const wh = r1 - r0 + 1;
 
-  const seeds = new Uint8Array(ww * wh);
-  for (let wr = 0; wr < wh; wr++) {
-    const rowStart = (wr + r0) * width + c0;
-    for (let wc = 0; wc < ww; wc++) seeds[wr * ww + wc] = Number.isNaN(waterLevelM[rowStart + wc] ?? NaN) ? 0 : 1;
+  const seeds = new Int32Array(count);
+  for (let k = 0; k < count; k++) {
+    const i = cells[k]!;
+    const r = (i / width) | 0;
+    seeds[k] = (r - r0) * ww + (i - r * width - c0);
   }
-  const { distanceM: dist, nearest } = distanceTransform(
-    { width: ww, height: wh, cellWidthM: grid.cellWidthM.subarray(r0, r1 + 1), cellHeightM: grid.cellHeightM },
-    seeds,
-  );
+  const sweep = new NearestSeedSweep({ width: ww, height: wh, cellWidthM: grid.cellWidthM.subarray(r0, r1 + 1), cellHeightM: grid.cellHeightM }, seeds, reachM);
+  const cols = new Int32Array(ww);
+  const dist = new Float32Array(ww);
+  const nearest = new Int32Array(ww);
 
   let inundatedAreaM2 = 0;
   let riparianAreaM2 = 0;
   for (let wr = 0; wr < wh; wr++) {
+    const within = sweep.row(wr, cols, dist, nearest);
+    if (within === 0) continue;
     const r = wr + r0;
     const area = cellAreaM2[r] ?? 0;
-    for (let wc = 0; wc < ww; wc++) {
-      const wi = wr * ww + wc;
+    const rowSeed = wr * ww;
+    for (let m = 0; m < within; m++) {
+      const wc = cols[m]!;
+      const k = nearest[m]!;
       const i = r * width + wc + c0;
-      if (seeds[wi] === 1) {
+      if (seeds[k] === rowSeed + wc) {
         classes[i] = INFLUENCE_INUNDATED;
         inundatedAreaM2 += area;
         if (owner !== undefined && cellOwner !== undefined && byOwner !== undefined) {
-          const o = owner[i] ?? 0;
+          const o = owner[k]!;
           cellOwner[i] = o;
-          byOwner.inundatedAreaM2[o] = (byOwner.inundatedAreaM2[o] ?? 0) + area;
+          byOwner.inundatedAreaM2[o] = byOwner.inundatedAreaM2[o]! + area;
         }
         continue;
       }
-      const dw = dist[wi] ?? Infinity;
-      if (!(dw <= reachM)) continue;
+      const dw = dist[m]!;
       if (valleyBottom !== undefined && valleyBottom[i] !== 1) continue;
-      const s = nearest[wi] ?? 0;
-      const sr = ((s / ww) | 0) + r0;
-      const seed = sr * width + (s % ww) + c0;
       const zi = z[i] ?? NaN;
-      const levelM = waterLevelM[seed] ?? NaN;
+      const levelM = pondLevelM[k]!;
       const inRule = dw <= distanceM && zi <= levelM + riseM; // NaN (NoData) fails
       if (cand !== undefined && zi - levelM <= riseMaxM) {
         if (cand.count === cand.cell.length) cand = growCandidates(cand);
@@ -194,16 +238,16 @@ export function influenceZone(grid: Grid, waterLevelM: Float32Array, options: In
         cand.cell[j] = i;
         cand.distanceM[j] = dw;
         cand.riseM[j] = zi - levelM;
-        cand.owner[j] = owner !== undefined ? (owner[seed] ?? 0) : 0;
+        cand.owner[j] = owner !== undefined ? owner[k]! : 0;
         cand.inRule[j] = inRule ? 1 : 0;
       }
       if (!inRule) continue;
       classes[i] = INFLUENCE_RIPARIAN;
       riparianAreaM2 += area;
       if (owner !== undefined && cellOwner !== undefined && byOwner !== undefined) {
-        const o = owner[seed] ?? 0;
+        const o = owner[k]!;
         cellOwner[i] = o;
-        byOwner.riparianAreaM2[o] = (byOwner.riparianAreaM2[o] ?? 0) + area;
+        byOwner.riparianAreaM2[o] = byOwner.riparianAreaM2[o]! + area;
       }
     }
   }
