@@ -20,8 +20,9 @@
  *
  * p for beaver ponds: Karran et al. (2017, "Rapid surface-water volume
  * estimations in beaver ponds", Hydrology and Earth System Sciences 21:
- * 1039–1050) fitted p on surveyed beaver ponds; their median, 0.91, is the
- * default here.
+ * 1039–1050) fitted p on surveyed beaver ponds; their median, 0.91 (from
+ * memory: the paper could not be consulted while this was written, so the
+ * value is not re-checked), is the default here.
  */
 
 /** Which model gives the water below today's surface. */
@@ -32,7 +33,7 @@ export const BELOW_MODELS: readonly BelowModel[] = ['power-law', 'reconstructed'
 
 /**
  * Default shape exponent p of the area–depth power law (dimensionless):
- * 0.91, the median over beaver ponds of Karran et al. (2017).
+ * 0.91, the median over beaver ponds of Karran et al. (2017) (from memory, not re-checked).
  */
 export const POWER_P_MEDIAN = 0.91;
 
