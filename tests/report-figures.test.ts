@@ -182,6 +182,11 @@ describe('report figures against summary.json', () => {
       'watersheds[1].valley_bottom_area_m2',
       'dams[0].bands.volume_m3.p95',
       'dams[0].volume_below_surface_m3',
+      // Bands of the areas too, under each figure in the tables.
+      'dams[0].bands.influence_area_m2.p05',
+      'watersheds[0].bands.influence_area_m2.p95',
+      'watersheds[1].bands.inundated_area_m2.p05',
+      'totals.bands.inundated_area_m2.p95',
     ]) {
       expect(fields.has(f), f).toBe(true);
     }

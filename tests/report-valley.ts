@@ -108,17 +108,26 @@ export function enrichSummary(summary: Record<string, unknown>): Record<string, 
   s.dams.forEach((d, k) => {
     d['watershed'] = k < half ? 'lower-fork' : 'upper-fork';
     if (d.estimated) {
-      d['bands'] = { volume_m3: band(d.volume_m3), area_m2: band(d.area_m2) };
+      d['bands'] = { volume_m3: band(d.volume_m3), area_m2: band(d.area_m2), influence_area_m2: band(d.area_m2 * 3.7) };
       d['volume_below_surface_m3'] = d.volume_m3 * 0.25;
       d['influence_area_m2'] = d.area_m2 * 3.7;
     }
   });
   const sum = (from: number, to: number, key: 'volume_m3' | 'area_m2'): number => s.dams.slice(from, to).reduce((a, d) => a + d[key], 0);
-  const lower = sum(0, half, 'volume_m3');
-  const upper = sum(half, s.dams.length, 'volume_m3');
-  s['watersheds'] = [
-    { id: 'lower-fork', dam_count: half, stream_length_m: 2150, inundated_area_m2: sum(0, half, 'area_m2'), influence_area_m2: sum(0, half, 'area_m2') * 3.7, valley_bottom_area_m2: 81000, storage_m3: lower, bands: { storage_m3: band(lower) } },
-    { id: 'upper-fork', dam_count: s.dams.length - half, stream_length_m: 1730, inundated_area_m2: sum(half, s.dams.length, 'area_m2'), influence_area_m2: sum(half, s.dams.length, 'area_m2') * 3.7, valley_bottom_area_m2: 64000, storage_m3: upper, bands: { storage_m3: band(upper) } },
-  ];
+  const shed = (id: string, from: number, to: number, streamM: number, valleyM2: number): Record<string, unknown> => {
+    const area = sum(from, to, 'area_m2');
+    const storage = sum(from, to, 'volume_m3');
+    return {
+      id,
+      dam_count: to - from,
+      stream_length_m: streamM,
+      inundated_area_m2: area,
+      influence_area_m2: area * 3.7,
+      valley_bottom_area_m2: valleyM2,
+      storage_m3: storage,
+      bands: { storage_m3: band(storage), inundated_area_m2: band(area), influence_area_m2: band(area * 3.7) },
+    };
+  };
+  s['watersheds'] = [shed('lower-fork', 0, half, 2150, 81000), shed('upper-fork', half, s.dams.length, 1730, 64000)];
   return s;
 }

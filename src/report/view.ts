@@ -94,6 +94,9 @@ export interface ReportView {
 const fig = (value: number, field: string, unit: DisplayUnit, decimals?: number): string =>
   figureHtml(decimals === undefined ? { value, field, unit } : { value, field, unit, decimals });
 const figU = (value: number, field: string, unit: DisplayUnit): string => figureWithUnit({ value, field, unit });
+/** A figure's 90 % band as a second line under it in a table cell ('' without a band). */
+const bandLine = (band: { p05: number; p95: number } | undefined, field: string, unit: DisplayUnit): string =>
+  band ? `<span class="cell-band">90 %: ${fig(band.p05, `${field}.p05`, unit)} – ${fig(band.p95, `${field}.p95`, unit)}</span>` : '';
 
 /** A band as "p05 – p95 unit", each end a figure. */
 function bandText(band: Band | undefined, field: string, unit: DisplayUnit): string | null {
@@ -337,7 +340,7 @@ function damRows(summary: RunSummary): ReportView['dams'] {
       volumeUs: d.estimated ? volUs : '',
       band: volBand ? `${fig(volBand.p05, `${bandField}.p05`, 'm3')} – ${fig(volBand.p95, `${bandField}.p95`, 'm3')}` : '–',
       below: d.volumeBelowSurfaceM3 !== null ? fig(d.volumeBelowSurfaceM3, `${f}.volume_below_surface_m3`, 'm3') : null,
-      influence: d.influenceAreaM2 !== null ? fig(d.influenceAreaM2, `${f}.influence_area_m2`, 'ha') : null,
+      influence: d.influenceAreaM2 !== null ? fig(d.influenceAreaM2, `${f}.influence_area_m2`, 'ha') + bandLine(d.bands?.['influence_area_m2'], `${f}.bands.influence_area_m2`, 'ha') : null,
       watershed: d.watershed !== null ? escape(d.watershed) : null,
       notes: notes.join('; '),
     };
@@ -360,8 +363,16 @@ function watershedView(summary: RunSummary): NonNullable<ReportView['watersheds'
       dams: w.damCount !== null ? fig(w.damCount, `${f}.dam_count`, 'count') : '–',
       stream: w.streamLengthM !== null ? `${fig(w.streamLengthM, `${f}.stream_length_m`, 'km')} <span class="us">${fig(w.streamLengthM, `${f}.stream_length_m`, 'mi')}</span>` : '–',
       perKm: w.damCount !== null && w.streamLengthM !== null && w.streamLengthM > 0 ? formatNumber(w.damCount / (w.streamLengthM / 1000)) : null,
-      inundated: w.inundatedAreaM2 !== null ? `${fig(w.inundatedAreaM2, `${f}.inundated_area_m2`, 'ha')} <span class="us">${fig(w.inundatedAreaM2, `${f}.inundated_area_m2`, 'acres')}</span>` : '–',
-      influence: w.influenceAreaM2 !== null ? `${fig(w.influenceAreaM2, `${f}.influence_area_m2`, 'ha')} <span class="us">${fig(w.influenceAreaM2, `${f}.influence_area_m2`, 'acres')}</span>` : '–',
+      inundated:
+        w.inundatedAreaM2 !== null
+          ? `${fig(w.inundatedAreaM2, `${f}.inundated_area_m2`, 'ha')} <span class="us">${fig(w.inundatedAreaM2, `${f}.inundated_area_m2`, 'acres')}</span>` +
+            bandLine(w.bands?.['inundated_area_m2'], `${f}.bands.inundated_area_m2`, 'ha')
+          : '–',
+      influence:
+        w.influenceAreaM2 !== null
+          ? `${fig(w.influenceAreaM2, `${f}.influence_area_m2`, 'ha')} <span class="us">${fig(w.influenceAreaM2, `${f}.influence_area_m2`, 'acres')}</span>` +
+            bandLine(w.bands?.['influence_area_m2'], `${f}.bands.influence_area_m2`, 'ha')
+          : '–',
       valley: w.valleyBottomAreaM2 !== null ? `${fig(w.valleyBottomAreaM2, `${f}.valley_bottom_area_m2`, 'ha')} <span class="us">${fig(w.valleyBottomAreaM2, `${f}.valley_bottom_area_m2`, 'acres')}</span>` : '–',
       pct,
       storage: `${fig(w.storageM3, `${f}.storage_m3`, 'm3')} <span class="us">${fig(w.storageM3, `${f}.storage_m3`, 'acre_ft')}</span>`,
@@ -371,8 +382,14 @@ function watershedView(summary: RunSummary): NonNullable<ReportView['watersheds'
   const t = summary.totals;
   const total = {
     storage: `${fig(t.storageM3, 'totals.storage_m3', 'm3')} <span class="us">${fig(t.storageM3, 'totals.storage_m3', 'acre_ft')}</span>`,
-    inundated: `${fig(t.inundatedAreaM2, 'totals.inundated_area_m2', 'ha')} <span class="us">${fig(t.inundatedAreaM2, 'totals.inundated_area_m2', 'acres')}</span>`,
-    influence: t.influenceAreaM2 !== null ? `${fig(t.influenceAreaM2, 'totals.influence_area_m2', 'ha')} <span class="us">${fig(t.influenceAreaM2, 'totals.influence_area_m2', 'acres')}</span>` : '–',
+    inundated:
+      `${fig(t.inundatedAreaM2, 'totals.inundated_area_m2', 'ha')} <span class="us">${fig(t.inundatedAreaM2, 'totals.inundated_area_m2', 'acres')}</span>` +
+      bandLine(t.bands?.['inundated_area_m2'], 'totals.bands.inundated_area_m2', 'ha'),
+    influence:
+      t.influenceAreaM2 !== null
+        ? `${fig(t.influenceAreaM2, 'totals.influence_area_m2', 'ha')} <span class="us">${fig(t.influenceAreaM2, 'totals.influence_area_m2', 'acres')}</span>` +
+          bandLine(t.bands?.['influence_area_m2'], 'totals.bands.influence_area_m2', 'ha')
+        : '–',
     band: t.bands?.['storage_m3'] ? `${fig(t.bands['storage_m3'].p05, 'totals.bands.storage_m3.p05', 'm3')} – ${fig(t.bands['storage_m3'].p95, 'totals.bands.storage_m3.p95', 'm3')}` : null,
   };
   return { chart: storageByWatershedChart(ws), rows, hasBands, hasInfluence, hasValley, hasStreams, total };
