@@ -126,7 +126,8 @@ export function uncertaintyAssumptions(u: UncertaintyParams): string[] {
 /** Approximations of the fast draws, stated in summary.json. */
 export const APPROXIMATIONS: readonly string[] = [
   'Each dam is flooded once, to the highest level a draw can reach (4.5 standard deviations above the crest); every draw reads its pond from that fill by binary search.',
-  "DEM error enters as a shift of the pond's level by its area-mean error minus the error at the dam's bed cell (first order in the error's variation within the pond); the pond whose mean is taken is the deterministic one; spill levels are taken from the DEM as it is.",
+  "DEM error enters as a shift of the pond's level by its area-mean error minus the error at the cell its crest is measured from (first order in the error's variation within the pond); that cell is the lowest on the true ground of the cells nearly as low as it; the pond whose mean is taken is the deterministic one.",
+  "A pond whose water escapes below its crest escapes at the lowest, on the true ground, of its few lowest ways out, each moved by its pass's error; along a way out only the pass moves (against re-flooding perturbed DEMs: within 1 % for ponds held by their crest, within 14 % for ponds spilling round short crests).",
   'Crests built from dam points are built once, for the deterministic height; higher draws may spill round their ends.',
   'Ponds that can share cells in some draw (found once from the fills) are combined per draw into one water surface; all other ponds are summed as they are.',
 ];
