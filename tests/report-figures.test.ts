@@ -190,6 +190,11 @@ describe('report figures against summary.json', () => {
     ]) {
       expect(fields.has(f), f).toBe(true);
     }
+    // The enriched bands put the estimates above their medians (p50 = 0.97 × estimate): said when ponds held by a way out count.
+    const dams = rich['dams'] as { estimated: boolean; in_totals: boolean; limited_by: string | null }[];
+    const escaping = dams.filter((d) => d.estimated && d.in_totals && ['spill', 'edge', 'nodata'].includes(d.limited_by ?? '')).length;
+    expect(escaping).toBeGreaterThan(0);
+    expect(richHtml).toContain(`The storage and inundated-area estimates lie above the band’s median: ${escaping} of the ponds counted are held not by their crest`);
   });
 
   it('shows the bands of a run with Monte Carlo draws, each equal to summary.json', async () => {

@@ -108,6 +108,8 @@ export function enrichSummary(summary: Record<string, unknown>): Record<string, 
   s.dams.forEach((d, k) => {
     d['watershed'] = k < half ? 'lower-fork' : 'upper-fork';
     if (d.estimated) {
+      // One pond held by the way round its crest, as a spilling pond is reported.
+      if (k === 0) d['limited_by'] = 'spill';
       d['bands'] = { volume_m3: band(d.volume_m3), area_m2: band(d.area_m2), influence_area_m2: band(d.area_m2 * 3.7) };
       d['volume_below_surface_m3'] = d.volume_m3 * 0.25;
       d['influence_area_m2'] = d.area_m2 * 3.7;

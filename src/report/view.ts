@@ -10,7 +10,7 @@ import type { ReportMap } from './map-file.js';
 import { buildMapFigure, type MapFigure, type MapLayers } from './map-svg.js';
 import { methodsOf, type MethodsView } from './methods.js';
 import { HEIGHT_SOURCE_STYLE, LIMIT_STYLE, STATUS_STYLE } from './palette.js';
-import type { Band, RunSummary, RunTotals } from './run-data.js';
+import type { Band, RunSummary } from './run-data.js';
 import { legendSwatch } from './svg.js';
 
 /** Everything a report is rendered from. */
@@ -169,7 +169,7 @@ export function buildView(input: ReportInput): ReportView {
 
   const u = summary.uncertainty;
   const bandNote = t.bands
-    ? `Bands run from the 5th to the 95th percentile${u ? ` of ${formatNumber(u.draws, 0)} Monte Carlo draws${u.seed !== null ? ` (seed ${u.seed})` : ''}` : ' of the run’s Monte Carlo draws'}; see Methods for their sources.${skewNote(t)}`
+    ? `Bands run from the 5th to the 95th percentile${u ? ` of ${formatNumber(u.draws, 0)} Monte Carlo draws${u.seed !== null ? ` (seed ${u.seed})` : ''}` : ' of the run’s Monte Carlo draws'}; see Methods for their sources.${skewNote(summary)}`
     : null;
   const uncertainty = u
     ? {
@@ -405,8 +405,18 @@ function slug(s: string): string {
  * cube of its height, so the draws' storage is skewed upwards. Said only when
  * the estimate lies below the band's median.
  */
-function skewNote(t: RunTotals): string {
+function skewNote(summary: RunSummary): string {
+  const t = summary.totals;
+  let note = '';
   const p50 = t.bands?.['storage_m3']?.p50;
-  if (p50 === undefined || !(t.storageM3 < p50)) return '';
-  return ' The storage estimate lies below the band’s median: it takes unmeasured dams at the typical height, and a pond’s volume grows about with the cube of its height, so taller draws add more than shorter ones take away.';
+  if (p50 !== undefined && t.storageM3 < p50) {
+    note += ' The storage estimate lies below the band’s median: it takes unmeasured dams at the typical height, and a pond’s volume grows about with the cube of its height, so taller draws add more than shorter ones take away.';
+  }
+  const areaP50 = t.bands?.['inundated_area_m2']?.p50;
+  const escaping = summary.dams.filter((d) => d.estimated && d.inTotals && (d.limitedBy === 'spill' || d.limitedBy === 'edge' || d.limitedBy === 'nodata')).length;
+  const above = [p50 !== undefined && t.storageM3 > p50 ? 'storage' : null, areaP50 !== undefined && t.inundatedAreaM2 > areaP50 ? 'inundated-area' : null].filter((x) => x !== null);
+  if (escaping > 0 && above.length > 0) {
+    note += ` The ${above.join(' and ')} estimate${above.length > 1 ? 's lie' : ' lies'} above the band’s median: ${formatNumber(escaping, 0)} of the ponds counted are held not by their crest but by the lowest way out round it (limited by spill, edge or NoData), and where several ways out stand nearly as low in the DEM, the lowest of them on the true ground is likely lower than the DEM shows, so the draws hold less water there.`;
+  }
+  return note;
 }
