@@ -42,6 +42,9 @@ export class TileFlood {
   private readonly slope: Int32Array;
   private readonly sorted: Int32Array;
   private readonly sorter: CellSorter;
+  /** Offsets of the eight neighbours in the current tile (NW, N, NE, W, E, SW, S, SE), and room for an edge cell's list. */
+  private readonly around = new Int32Array(8);
+  private readonly edge = new Int32Array(8);
 
   constructor(maxRows: number, maxCols: number) {
     const size = maxRows * maxCols;
@@ -70,8 +73,9 @@ export class TileFlood {
     graph: SpillGraph,
   ): number {
     const { r0, c0, rows, cols } = t;
-    const { lz, state, lab, pit, slope, sorted } = this;
+    const { lz, state, lab, pit, slope, sorted, around, edge } = this;
     const size = rows * cols;
+    around.set([-cols - 1, -cols, -cols + 1, -1, 1, cols - 1, cols, cols + 1]);
     for (let lr = 0; lr < rows; lr++) {
       const g = (r0 + lr) * width + c0;
       for (let lc = 0; lc < cols; lc++) lz[lr * cols + lc] = z[g + lc] ?? NaN;
@@ -148,29 +152,36 @@ export class TileFlood {
       const lr = (cell / cols) | 0;
       const lc = cell - lr * cols;
       const interior = lr > 0 && lc > 0 && lr < rows - 1 && lc < cols - 1;
-      for (let dr = -1; dr <= 1; dr++) {
-        const nr = lr + dr;
-        if (!interior && (nr < 0 || nr >= rows)) continue;
-        for (let dc = -1; dc <= 1; dc++) {
-          const nc = lc + dc;
-          if ((dr === 0 && dc === 0) || (!interior && (nc < 0 || nc >= cols))) continue;
-          const nb = nr * cols + nc;
-          const zn = lz[nb] ?? 0;
-          if (state[nb] !== 0) {
-            const other = lab[nb] ?? 0;
-            if (other !== own && other !== 0) graph.add(own, other, zn > level ? zn : level);
-            continue;
+      let count = 8;
+      if (!interior) {
+        // On the tile's edge: list the neighbours inside the tile (same order as `around`).
+        count = 0;
+        for (let dr = -1; dr <= 1; dr++) {
+          const nr = lr + dr;
+          if (nr < 0 || nr >= rows) continue;
+          for (let dc = -1; dc <= 1; dc++) {
+            const nc = lc + dc;
+            if ((dr !== 0 || dc !== 0) && nc >= 0 && nc < cols) edge[count++] = nr * cols + nc;
           }
-          state[nb] = CLOSED;
-          lab[nb] = own;
-          if (zn <= level) {
-            lz[nb] = level;
-            pit[pitTail++] = nb;
-          } else if (openNeighboursHigher(lz, state, cols, nb, zn)) {
-            slope[slopeTail++] = nb;
-          } else {
-            state[nb] = QUEUED;
-          }
+        }
+      }
+      for (let k = 0; k < count; k++) {
+        const nb = interior ? cell + around[k]! : edge[k]!;
+        const zn = lz[nb]!;
+        if (state[nb] !== 0) {
+          const other = lab[nb]!;
+          if (other !== own && other !== 0) graph.add(own, other, zn > level ? zn : level);
+          continue;
+        }
+        state[nb] = CLOSED;
+        lab[nb] = own;
+        if (zn <= level) {
+          lz[nb] = level;
+          pit[pitTail++] = nb;
+        } else if (openNeighboursHigher(lz, state, around, nb, zn)) {
+          slope[slopeTail++] = nb;
+        } else {
+          state[nb] = QUEUED;
         }
       }
     }
@@ -185,13 +196,11 @@ export class TileFlood {
   }
 }
 
-/** Whether every not-yet-reached neighbour of interior tile cell `cell` is higher than `zc`. */
-function openNeighboursHigher(lz: Float32Array, state: Uint8Array, cols: number, cell: number, zc: number): boolean {
-  for (let k = -cols; k <= cols; k += cols) {
-    const base = cell + k;
-    for (let i = base - 1; i <= base + 1; i++) {
-      if (state[i] === 0 && (lz[i] ?? 0) <= zc) return false;
-    }
+/** Whether every not-yet-reached neighbour of interior tile cell `cell` (offsets `around`) is higher than `zc`. */
+function openNeighboursHigher(lz: Float32Array, state: Uint8Array, around: Int32Array, cell: number, zc: number): boolean {
+  for (let k = 0; k < 8; k++) {
+    const i = cell + around[k]!;
+    if (state[i] === 0 && lz[i]! <= zc) return false;
   }
   return true;
 }
