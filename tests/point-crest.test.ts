@@ -213,6 +213,64 @@ describe('crestFromPoint with lidar noise', () => {
   }
 });
 
+describe('crestFromPoint on a wide floor with a narrow meandering channel', () => {
+  // A trapezoidal valley flowing east: a floor W wide rising 1:cs from its axis to sides of 1:m,
+  // falling S down-valley, with a channel chW wide and D deep (parabolic section) meandering
+  // about the axis (amplitude A, wavelength L), and QL2 noise (USGS Lidar Base Specification:
+  // RMSEz 10 cm). The ±20 m profiles of the channel's scale see neither the valley sides nor a
+  // straight channel. Analytic: a crest across the valley at elevation Zc reaches the ground
+  // where floor + side rise = Zc − (axis floor): |x| = W/2 + m·(f − cs·W/2), f = Zc − floor at
+  // the axis (valley sides are planes, so the length is 2|x| wherever the channel lies).
+  const cellM = 1;
+  const size = 300;
+  const W = 70;
+  const cs = 0.006;
+  const m = 3;
+  const S = 0.003;
+  const D = 0.7;
+  const chW = 4;
+  const A = 12;
+  const L = 150;
+  const ax0 = X0 + 150.5;
+  const ay0 = Y0 - 150.5;
+  const channelY = (x: number): number => ay0 + A * Math.sin((2 * Math.PI * (x - ax0)) / L);
+  const axisFloor = (x: number): number => 100 - S * (x - ax0) + D;
+  const z = (x: number, y: number): number => {
+    const across = Math.abs(y - ay0);
+    const rise = across <= W / 2 ? across * cs : (W / 2) * cs + (across - W / 2) / m;
+    const d = Math.abs(y - channelY(x));
+    const channel = d < chW / 2 ? -D * (1 - ((2 * d) / chW) ** 2) : 0;
+    return axisFloor(x) + rise + channel;
+  };
+  for (const seed of [1, 2, 3, 4]) {
+    for (const alongM of [0, 20, 40]) {
+      it(`seed ${seed}, ${alongM} m down the meander: the crest crosses the valley, as long as the section at its elevation`, () => {
+        const rng = createRng(seed);
+        const grid = gridOf(size, cellM, z);
+        for (let i = 0; i < grid.z.length; i++) grid.z[i] = (grid.z[i] ?? 0) + 0.1 * normal(rng);
+        const px = ax0 + alongM;
+        const crest = ok(crestFromPoint(grid, px, channelY(px) + 2, { heightM: 1.5 }));
+        // Flow east (bearing 90°) within 2°, the crest perpendicular to it.
+        const bearing = (Math.atan2(crest.flowDirection[0], crest.flowDirection[1]) * 180) / Math.PI;
+        expect(Math.abs(bearing - 90)).toBeLessThan(2);
+        const [a, b] = crest.line as [[number, number], [number, number]];
+        expect(lineAngleDeg(b[0] - a[0], b[1] - a[1], 1, 0)).toBeGreaterThan(88);
+        // The bed is the channel, on the cross-section through the point.
+        const col = crest.channelCell % size;
+        const row = Math.floor(crest.channelCell / size);
+        const cx = X0 + (col + 0.5) * cellM;
+        expect(Math.abs(Y0 - (row + 0.5) * cellM - channelY(cx))).toBeLessThanOrEqual(chW / 2 + cellM);
+        expect(Math.abs(cx - px)).toBeLessThanOrEqual(cellM);
+        // Length: the analytic section width at the crest elevation, within a metre and a half (noise at the ends).
+        const f = crest.crestElevM - axisFloor(cx);
+        const half = f <= (W / 2) * cs ? f / cs : W / 2 + m * (f - (W / 2) * cs);
+        expect(crest.reachedBothSides).toBe(true);
+        expect(Math.abs(crest.lengthM - 2 * half)).toBeLessThan(1.5);
+      });
+    }
+  }
+});
+
 describe('crestFromPoint units and skips', () => {
   it('works in a US-survey-foot CRS: the length is in metres, the line in feet', () => {
     const usFt = 1200 / 3937; // 85 FR 62698 (2020)

@@ -5,15 +5,25 @@
  *    the point, ties to the nearest. On a sloping reach this is the
  *    downstream end of the search disc, i.e. the toe of the dam in a DEM
  *    flown after it was built; the crest is placed there.
- * 2. Flow direction: a directional profile search over ±`flowReachM`
- *    (default 20 m, at least 5 cells) through the channel cell; see
- *    point-crest-axis.ts.
- * 3. Crest: a straight line through the channel cell centre, perpendicular
- *    to the flow, walked out on both banks at half-cell steps (in ground
- *    metres) until the ground reaches bed + heightM (the end is interpolated
- *    between the last two samples), the grid edge, or until the whole line
- *    reaches `maxCrestLengthM` (default 150 m total: crests over 100 m long
- *    occur, common practice). NoData samples are stepped over and counted.
+ * 2. Flow direction: a directional profile search through the channel cell
+ *    (point-crest-axis.ts) at two scales: the channel's, over ±`flowReachM`
+ *    (default 20 m, at least 5 cells), and the valley's, over half the crest
+ *    cap (the reach a crest may span: ±75 m by default).
+ * 3. Crest, for each of the two directions: the channel is the lowest cell
+ *    on the cross-section through the point (step 2b below), and a straight
+ *    line through its centre, perpendicular to the flow, is walked out on
+ *    both banks at half-cell steps (in ground metres) until the ground
+ *    reaches bed + heightM (the end is interpolated between the last two
+ *    samples), the grid edge, or until the whole line reaches
+ *    `maxCrestLengthM` (default 150 m total: crests over 100 m long occur,
+ *    common practice). NoData samples are stepped over and counted.
+ * 4. Of the two crests, the shorter of those that reach the crest elevation
+ *    on both banks is kept (a dam closes its valley along the shortest
+ *    crossing; a line oblique to the valley is longer); when neither does,
+ *    the channel-scale one. On a floor wider than ±`flowReachM` with a
+ *    narrow, meandering channel, the channel-scale profiles see neither the
+ *    valley sides nor a straight channel and can point across the valley;
+ *    the valley-scale profiles see its sides.
  *
  * The line runs from the right bank to the left bank (looking downstream),
  * so upstream lies to the left of the line as drawn.
@@ -21,7 +31,7 @@
 import type { Warning } from '../errors.js';
 import type { Grid } from '../grid/grid.js';
 import { colToX, rowToY, xToCol, yToRow } from '../grid/transform.js';
-import { estimateFlowAxis } from './point-crest-axis.js';
+import { estimateFlowAxis, type FlowAxis } from './point-crest-axis.js';
 import { frameAt, onGrid, sampleZ } from './point-crest-frame.js';
 
 /** Default search radius for the channel around a dam point, metres. */
@@ -120,17 +130,56 @@ export function crestFromPoint(grid: Grid, x: number, y: number, options: PointC
       }
     }
   }
-  let cr = Math.floor(channel / width);
-  let cc = channel - cr * width;
   const stepM = 0.5 * Math.min(cwM, chM);
-  const warnings: Warning[] = [];
+  const walk: CrestWalk = { colF, rowF, pc, pr, snapRadiusM, heightM, maxLengthM, stepM, damId, channel, bedM: bed, snapDistanceM: Math.sqrt(bestD2) };
+  const anchor = frameAt(grid, channel % width, Math.floor(channel / width));
 
-  // 2. Flow direction.
+  // 2. Flow direction at the channel's scale, then at the valley's; 3–4. the crest along each, the shorter closed one kept.
   const reachM = Math.max(options.flowReachM ?? DEFAULT_FLOW_REACH_M, 5 * Math.max(cwM, chM));
-  const axis = estimateFlowAxis(grid, frameAt(grid, cc, cr), reachM, stepM);
-  if (axis === null) {
+  const channelAxis = estimateFlowAxis(grid, anchor, reachM, stepM);
+  if (channelAxis === null) {
     return { skip: warn('flow-direction-unknown', `too little valid DEM within ${reachM} m of the channel to tell the flow direction; give the crest as a line`, damId) };
   }
+  const first = crestAlong(grid, channelAxis, reachM, walk);
+  const valleyReachM = maxLengthM / 2;
+  if (!(valleyReachM > reachM)) return first;
+  const valleyAxis = estimateFlowAxis(grid, anchor, valleyReachM, stepM);
+  if (valleyAxis === null) return first;
+  const second = crestAlong(grid, valleyAxis, valleyReachM, walk);
+  if (!second.reachedBothSides) return first;
+  return first.reachedBothSides && first.lengthM <= second.lengthM ? first : second;
+}
+
+/** What `crestAlong` needs besides the flow axis: the point, step 1's channel cell, the crest's height and cap. Lengths in metres. */
+interface CrestWalk {
+  /** The point as fractional column and row, and the cell it falls in. */
+  colF: number;
+  rowF: number;
+  pc: number;
+  pr: number;
+  snapRadiusM: number;
+  heightM: number;
+  maxLengthM: number;
+  /** Walking step, m. */
+  stepM: number;
+  damId: string | undefined;
+  /** Step 1's channel cell (flat index), its elevation (m) and its distance from the point (m). */
+  channel: number;
+  bedM: number;
+  snapDistanceM: number;
+}
+
+/**
+ * The crest perpendicular to `axis` (found over ±`axisReachM` metres):
+ * the channel on the cross-section through the point (2b), then both banks
+ * walked to the crest elevation (3).
+ */
+function crestAlong(grid: Grid, axis: FlowAxis, axisReachM: number, w: CrestWalk): PointCrest {
+  const { width, height, z } = grid;
+  const { colF, rowF, pc, pr, snapRadiusM, heightM, maxLengthM, stepM, damId } = w;
+  let channel = w.channel;
+  let bed = w.bedM;
+  const warnings: Warning[] = [];
 
   // 2b. The dam stands where the point says, not where the search disc is lowest: on a
   // sloping stream that is its downstream rim. Take the lowest cell on the cross-section
@@ -148,16 +197,12 @@ export function crestFromPoint(grid: Grid, x: number, y: number, options: PointC
         channel = r * width + c;
       }
     }
-    if (best < Infinity) {
-      bed = best;
-      cr = Math.floor(channel / width);
-      cc = channel - cr * width;
-    }
+    if (best < Infinity) bed = best;
   }
-  const frame = frameAt(grid, cc, cr);
-  if (axis.slope * 2 * reachM < FLOW_SENSE_MIN_DROP_M) {
+  const frame = frameAt(grid, channel % width, Math.floor(channel / width));
+  if (axis.slope * 2 * axisReachM < FLOW_SENSE_MIN_DROP_M) {
     warnings.push(
-      warn('flow-sense-uncertain', `the channel falls only ${(axis.slope * 2 * reachM).toFixed(2)} m over ${2 * reachM} m, so which side is upstream is uncertain; set "upstream" or give the crest as a line`, damId),
+      warn('flow-sense-uncertain', `the channel falls only ${(axis.slope * 2 * axisReachM).toFixed(2)} m over ${2 * axisReachM} m, so which side is upstream is uncertain; set "upstream" or give the crest as a line`, damId),
     );
   }
 
@@ -233,7 +278,7 @@ export function crestFromPoint(grid: Grid, x: number, y: number, options: PointC
     crestElevM,
     flowDirection: [axis.east, axis.north],
     lengthM: tL + tR,
-    snapDistanceM: Math.sqrt(bestD2),
+    snapDistanceM: w.snapDistanceM,
     reachedBothSides: reached[0] === true && reached[1] === true,
     warnings,
   };
