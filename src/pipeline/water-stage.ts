@@ -4,11 +4,18 @@
  * Per window group, after each dam's crest is set up and filled on the DEM
  * as read:
  * 1. `detect`: each dam counted in the totals gets its water surface, from
- *    the DEM (ponds/water-surface.ts) or from a water mask. Two dams that
- *    find the same water (a drowned dam's surface is its lower neighbour's)
- *    share it out cell by cell: the larger surface keeps a cell (ties: the
- *    dam listed first), so no water is counted twice. With a bed DEM, a
- *    cell whose bed stands at or above the water level is not water.
+ *    the DEM (ponds/water-surface.ts) or from a water mask. A dam whose
+ *    crest stands in another dam's water (the lowest crest cell, where the
+ *    channel crosses, and a cell just upstream of it both in that surface:
+ *    one level on both sides of the crest) holds no water of its own today:
+ *    its crest is at or below that level and its bed, under the water, is
+ *    not in the DEM. It gets no pond of its own, a crest at that level (an
+ *    upper bound) and is drowned by that dam. A dam whose lowest crest cell
+ *    alone lies in another dam's water is warned that its bed is that
+ *    water's surface. Two dams that otherwise find the same water share it
+ *    out cell by cell: the larger surface keeps a cell (ties: the dam listed
+ *    first), so no water is counted twice. With a bed DEM, a cell whose bed
+ *    stands at or above the water level is not water.
  *    Each dam's cells are then set to its water level in the window (the
  *    lidar noise on a water surface is no ground relief), and the caller
  *    fills every dam again on that surface: the fill's volume is then the
@@ -222,12 +229,71 @@ function belowAt(
   return { areaM2, volumeM3 };
 }
 
+/** Warnings of a dam's own fill that lose their meaning once it stands in another dam's water (estimate.ts limitWarning). */
+const FILL_LIMIT_CODES: ReadonlySet<string> = new Set(['spills-around-crest', 'reaches-edge', 'reaches-nodata']);
+
+/**
+ * For each member whose lowest crest cell lies in another member's found
+ * water surface (`candidates`, largest first: the larger keeps a cell found
+ * twice): the candidate holding it, and whether a cell just upstream of the
+ * crest lies in it too (the water stands on both sides: drowned). A member
+ * that stands out in the DEM (its crest a ridge, not water) is left out, and
+ * so is a holder that itself stands in a third dam's water (the third holds
+ * both).
+ */
+function standingIn(
+  grid: Grid,
+  members: readonly WaterMember[],
+  candidates: readonly { member: WaterMember; surface: WaterSurface }[],
+): Map<WaterMember, { candidate: number; drowned: boolean }> {
+  const n = grid.width * grid.height;
+  const label = candidates.length < 0xffff ? new Uint16Array(n) : new Int32Array(n);
+  candidates.forEach((c, k) => {
+    const cells = c.surface.cells;
+    for (let j = 0; j < cells.length; j++) if (label[cells[j]!] === 0) label[cells[j]!] = k + 1;
+  });
+  const holds = (m: WaterMember, k: number): boolean => {
+    const seeds = m.setup!.seedCells;
+    for (let j = 0; j < seeds.length; j++) if (label[seeds[j]!] === k + 1) return true;
+    return false;
+  };
+  const out = new Map<WaterMember, { candidate: number; drowned: boolean }>();
+  for (const m of members) {
+    const setup = m.setup;
+    if (!setup || !setup.holdsWater || setup.demVisible || !m.result.in_totals || m.result.status === 'proposed') continue;
+    const k = label[setup.bedCell]! - 1;
+    if (k < 0 || candidates[k]!.member === m) continue;
+    out.set(m, { candidate: k, drowned: holds(m, k) });
+  }
+  // A holder drowned in turn passes its dams on to its own holder; a loop of holders (no dam above the others) drowns none of them.
+  for (const [m, hold] of out) {
+    let k = hold.candidate;
+    const seen = new Set<number>([k]);
+    for (;;) {
+      const up = out.get(candidates[k]!.member);
+      if (!up || !up.drowned) break;
+      if (seen.has(up.candidate)) {
+        k = -1;
+        break;
+      }
+      seen.add(up.candidate);
+      k = up.candidate;
+    }
+    if (k < 0 || candidates[k]!.member === m) out.delete(m);
+    else hold.candidate = k;
+  }
+  return out;
+}
+
 /** The water-surface stage of one run (see the file comment). */
 export class WaterStage {
   private readonly usedLabels = new Set<number>();
   private found: Found[] = [];
   /** Window cells set to a water level by the last `detect`. */
   private changed: Int32Array = new Int32Array(0);
+  /** Dams of the last `detect` standing in another dam's water, with that dam; their fills are final. */
+  private drowned: { member: WaterMember; holder: WaterMember }[] = [];
+  private settled = new Set<PondFill>();
 
   constructor(
     readonly params: WaterRunParams,
@@ -252,6 +318,8 @@ export class WaterStage {
    */
   detect(grid: Grid, members: WaterMember[], box: CellBox, win: WaterWindow, warnings: Warning[]): boolean {
     this.found = [];
+    this.drowned = [];
+    this.settled.clear();
     if (!this.active) return false;
     const scratch = createWaterScratch(grid.width * grid.height);
     const candidates: { member: WaterMember; surface: WaterSurface; order: number }[] = [];
@@ -271,6 +339,28 @@ export class WaterStage {
       result.water_surface_check = check;
       if (surface) candidates.push({ member: m, surface, order });
     });
+    if (candidates.length === 0) return false;
+
+    // Dams standing in another dam's water: their water is that dam's.
+    candidates.sort((a, b) => b.surface.areaM2 - a.surface.areaM2 || a.order - b.order);
+    const inWater = standingIn(grid, members, candidates);
+    for (const [member, hold] of inWater) {
+      const holder = candidates[hold.candidate]!;
+      if (hold.drowned) {
+        this.drowned.push({ member, holder: holder.member });
+      } else {
+        const id = member.dam.id;
+        const message = `its lowest crest cell lies in the water surface of dam ${holder.member.dam.id}'s pond (${holder.surface.levelM.toFixed(2)} m), which the DEM shows instead of the bed there: its bed, and a crest set from the bed, may stand too high by that water's depth`;
+        warnings.push({ code: 'bed-in-standing-water', damId: id, message: `dam ${id}: ${message}` });
+        member.result.warnings.push(message);
+      }
+    }
+    const drownedSet = new Set(this.drowned.map((d) => d.member));
+    for (let k = candidates.length - 1; k >= 0; k--) if (drownedSet.has(candidates[k]!.member)) candidates.splice(k, 1);
+    for (const d of this.drowned) {
+      const holder = candidates.find((c) => c.member === d.holder);
+      if (holder) this.settle(d.member, holder.surface.levelM, d.holder.dam.id, warnings);
+    }
     if (candidates.length === 0) return false;
 
     // Share: the larger surface keeps a cell (ties: the dam listed first); with a bed DEM, no water where the bed is at or above the level.
@@ -331,7 +421,7 @@ export class WaterStage {
    * flooded cells' box (the fill may then differ on the changed window).
    */
   affects(fill: PondFill | undefined, width: number): boolean {
-    if (!fill || this.changed.length === 0) return false;
+    if (!fill || this.changed.length === 0 || this.settled.has(fill)) return false;
     const order = fill.order;
     if (order.length === 0) return true;
     const { c0, c1, r0, r1 } = cellBounds(order, width);
@@ -351,6 +441,13 @@ export class WaterStage {
   below(grid: Grid, members: WaterMember[], box: CellBox, win: WaterWindow, depth: { box: CellBox; data: Float32Array } | null, warnings: Warning[] = []): void {
     const { width } = grid;
     for (const m of members) m.result.volume_above_surface_m3 = m.result.volume_m3;
+    // The combined surface names the drowning dam where its level stands above the crest; a holder whose own level does not (overtopped) still drowns it.
+    for (const { member, holder } of this.drowned) {
+      if (member.result.drowned_by !== null) continue;
+      member.result.drowned_by = holder.dam.id;
+      member.result.warnings.push(`crest under the pond of dam ${holder.dam.id}; its water is counted there`);
+    }
+    this.drowned = [];
     for (const f of this.found) {
       const { member, surface, cells } = f;
       const r = member.result;
@@ -468,6 +565,64 @@ export class WaterStage {
       warnings.push({ code: 'bed-dem-offset', damId: id, message: `dam ${id}: ${message}` });
       member.result.warnings.push(message);
     }
+  }
+
+  /**
+   * A dam standing in another dam's water at `levelM`: no pond of its own
+   * (an empty fill, holding no water in the draws either), its crest at
+   * that level (an upper bound) and its bed the crest minus its height; the
+   * warnings of its own fill (water escaping round a crest set too high)
+   * are withdrawn.
+   */
+  private settle(member: WaterMember, levelM: number, holderId: string, warnings: Warning[]): void {
+    const setup = member.setup!;
+    const id = member.dam.id;
+    const crestElevM = Math.min(setup.crestElevM, levelM);
+    const bedElevM = crestElevM - setup.heightM;
+    const fill: PondFill = {
+      order: new Int32Array(0),
+      joinM: new Float64Array(0),
+      cumAreaM2: new Float64Array(0),
+      cumAreaZ: new Float64Array(0),
+      zRefM: bedElevM,
+      waterLevelM: levelM,
+      limitedBy: 'crest',
+      escapeKind: null,
+      escapeLevelM: Infinity,
+      escapeCell: -1,
+      escapePassCell: -1,
+      topLevelM: levelM,
+      crestCells: setup.crestCells,
+      crestElevM,
+      visitedCount: 0,
+    };
+    member.setup = { ...setup, holdsWater: false, crestElevM, bedElevM };
+    member.fill = fill;
+    this.settled.add(fill);
+    const r = member.result;
+    const own = r.warnings;
+    for (let k = warnings.length - 1; k >= 0; k--) {
+      const w = warnings[k]!;
+      if (w.damId !== id || !FILL_LIMIT_CODES.has(w.code)) continue;
+      const at = own.indexOf(w.message.replace(`dam ${id}: `, ''));
+      if (at >= 0) own.splice(at, 1);
+      warnings.splice(k, 1);
+    }
+    Object.assign(r, {
+      crest_elev_m: crestElevM,
+      bed_elev_m: bedElevM,
+      water_level_m: levelM,
+      limited_by: 'crest',
+      standalone_area_m2: 0,
+      standalone_volume_m3: 0,
+      stage_storage: [[levelM, 0, 0]],
+      water_surface_check: 'drowned',
+    } satisfies Partial<DamResult>);
+    const message =
+      `its crest stands in the water of dam ${holderId}'s pond: the DEM shows that water's surface (${levelM.toFixed(2)} m) on both sides of the crest where the channel crosses it, ` +
+      `so the dam holds no water of its own today; its crest is at or below that surface (crest_elev_m is that bound) and its bed, under the water, is not in the DEM`;
+    warnings.push({ code: 'crest-in-standing-water', damId: id, message: `dam ${id}: ${message}` });
+    r.warnings.push(message);
   }
 
   /** Run-level warnings once every group is done (mask features no pond touched). */
