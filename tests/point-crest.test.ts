@@ -242,12 +242,21 @@ describe('crestFromPoint on a wide floor with a narrow meandering channel', () =
     const channel = d < chW / 2 ? -D * (1 - ((2 * d) / chW) ** 2) : 0;
     return axisFloor(x) + rise + channel;
   };
+  /** Half the width of the section at elevation zc over the axis floor zf: on the floor when it is reached there, else on the side. */
+  const halfWidth = (zc: number, zf: number): number => {
+    const f = zc - zf;
+    return f <= (W / 2) * cs ? f / cs : W / 2 + m * (f - (W / 2) * cs);
+  };
+  const noisyGrid = (seed: number): Grid => {
+    const rng = createRng(seed);
+    const grid = gridOf(size, cellM, z);
+    for (let i = 0; i < grid.z.length; i++) grid.z[i] = (grid.z[i] ?? 0) + 0.1 * normal(rng);
+    return grid;
+  };
   for (const seed of [1, 2, 3, 4]) {
     for (const alongM of [0, 20, 40]) {
       it(`seed ${seed}, ${alongM} m down the meander: the crest crosses the valley, as long as the section at its elevation`, () => {
-        const rng = createRng(seed);
-        const grid = gridOf(size, cellM, z);
-        for (let i = 0; i < grid.z.length; i++) grid.z[i] = (grid.z[i] ?? 0) + 0.1 * normal(rng);
+        const grid = noisyGrid(seed);
         const px = ax0 + alongM;
         const crest = ok(crestFromPoint(grid, px, channelY(px) + 2, { heightM: 1.5 }));
         // Flow east (bearing 90°) within 2°, the crest perpendicular to it.
@@ -262,12 +271,23 @@ describe('crestFromPoint on a wide floor with a narrow meandering channel', () =
         expect(Math.abs(Y0 - (row + 0.5) * cellM - channelY(cx))).toBeLessThanOrEqual(chW / 2 + cellM);
         expect(Math.abs(cx - px)).toBeLessThanOrEqual(cellM);
         // Length: the analytic section width at the crest elevation, within a metre and a half (noise at the ends).
-        const f = crest.crestElevM - axisFloor(cx);
-        const half = f <= (W / 2) * cs ? f / cs : W / 2 + m * (f - (W / 2) * cs);
         expect(crest.reachedBothSides).toBe(true);
-        expect(Math.abs(crest.lengthM - 2 * half)).toBeLessThan(1.5);
+        expect(Math.abs(crest.lengthM - 2 * halfWidth(crest.crestElevM, axisFloor(cx)))).toBeLessThan(1.5);
       });
     }
+  }
+
+  for (const seed of [1, 2, 3, 5, 6, 8]) {
+    it(`seed ${seed}: a crest just above the floor is not ended by a noisy cell on it (within 10 % of the section width)`, () => {
+      // 1.0 m above the lowest cell: the crest stands a few centimetres over the floor's edges, where one
+      // cell of noise reaches it; the ground must stay at the crest elevation for two cells to end the line.
+      const grid = noisyGrid(seed);
+      const crest = ok(crestFromPoint(grid, ax0, channelY(ax0) + 2, { heightM: 1 }));
+      const cx = X0 + ((crest.channelCell % size) + 0.5) * cellM;
+      const width = 2 * halfWidth(crest.crestElevM, axisFloor(cx));
+      expect(crest.reachedBothSides).toBe(true);
+      expect(Math.abs(crest.lengthM / width - 1)).toBeLessThan(0.1);
+    });
   }
 });
 

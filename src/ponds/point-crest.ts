@@ -13,8 +13,9 @@
  *    on the cross-section through the point (step 2b below), and a straight
  *    line through its centre, perpendicular to the flow, is walked out on
  *    both banks at half-cell steps (in ground metres) until the ground
- *    reaches bed + heightM (the end is interpolated between the last two
- *    samples), the grid edge, or until the whole line reaches
+ *    reaches bed + heightM and stays there for two cells further (the end is
+ *    where it rose, interpolated between the two samples around it), the
+ *    grid edge, or until the whole line reaches
  *    `maxCrestLengthM` (default 150 m total: crests over 100 m long occur,
  *    common practice). NoData samples are stepped over and counted.
  * 4. Of the two crests, the shorter of those that reach the crest elevation
@@ -40,6 +41,13 @@ export const DEFAULT_SNAP_RADIUS_M = 10;
 export const DEFAULT_MAX_CREST_LENGTH_M = 150;
 /** Default half-length of the profiles used to find the flow direction, metres. */
 export const DEFAULT_FLOW_REACH_M = 20;
+/**
+ * A crest ends where the ground rises to its elevation and stays there for
+ * this many cells further: one noisy cell (QL2 lidar: 10 cm RMSEz) on a
+ * floor just below the crest does not end it short of the valley side. Two:
+ * a project choice.
+ */
+const END_HOLD_CELLS = 2;
 /** A profile fall below this over the whole profile leaves the downstream sense in doubt, metres (USGS Lidar Base Specification QL2 RMSEz 10 cm). */
 export const FLOW_SENSE_MIN_DROP_M = 0.1;
 
@@ -212,7 +220,10 @@ function crestAlong(grid: Grid, axis: FlowAxis, axisReachM: number, w: CrestWalk
   const crestElevM = bed + heightM;
   const dc = leftE * frame.colPerEastM;
   const dr = leftN * frame.rowPerNorthM;
-  const reach = [0, 0]; // metres from the channel: [left bank, right bank]
+  const holdM = END_HOLD_CELLS * 2 * stepM;
+  const reach = [0, 0]; // metres from the channel where the line ends: [left bank, right bank]
+  const walked = [0, 0]; // metres walked from the channel
+  const riseAt = [NaN, NaN]; // where the ground last rose to the crest elevation, metres (NaN: below it now)
   const prevZ = [bed, bed];
   const done = [false, false];
   const reached = [false, false];
@@ -222,35 +233,45 @@ function crestAlong(grid: Grid, axis: FlowAxis, axisReachM: number, w: CrestWalk
     for (let s = 0; s < 2; s++) {
       if (done[s]) continue;
       const sign = s === 0 ? 1 : -1;
-      const here = reach[s] ?? 0;
-      const other = reach[1 - s] ?? 0;
+      const here = walked[s] ?? 0;
+      const other = walked[1 - s] ?? 0;
       const t = Math.min(here + stepM, maxLengthM - other);
-      if (t <= here) {
+      const offGrid = !(t > here) || !onGrid(grid, frame.col0 + sign * t * dc, frame.row0 + sign * t * dr);
+      if (offGrid) {
+        // The cap or the grid's edge: the line ends here, or where the ground last rose to the crest elevation.
         done[s] = true;
+        const rise = riseAt[s] ?? NaN;
+        if (rise === rise) {
+          reach[s] = rise;
+          reached[s] = true;
+        } else {
+          reach[s] = here;
+          edge[s] = t > here;
+        }
         continue;
       }
-      const cF = frame.col0 + sign * t * dc;
-      const rF = frame.row0 + sign * t * dr;
-      if (!onGrid(grid, cF, rF)) {
-        done[s] = true;
-        edge[s] = true;
-        continue;
-      }
-      const zs = sampleZ(grid, cF, rF);
+      const zs = sampleZ(grid, frame.col0 + sign * t * dc, frame.row0 + sign * t * dr);
+      walked[s] = t;
       if (Number.isNaN(zs)) {
         nodataM += t - here;
-        reach[s] = t;
         continue;
       }
       const zp = prevZ[s] ?? bed;
-      if (zs >= crestElevM) {
-        reach[s] = zs > zp && zp < crestElevM ? here + ((crestElevM - zp) / (zs - zp)) * (t - here) : t;
-        done[s] = true;
-        reached[s] = true;
+      prevZ[s] = zs;
+      if (zs < crestElevM) {
+        riseAt[s] = NaN;
         continue;
       }
-      reach[s] = t;
-      prevZ[s] = zs;
+      let rise = riseAt[s] ?? NaN;
+      if (rise !== rise) {
+        rise = zs > zp && zp < crestElevM ? here + ((crestElevM - zp) / (zs - zp)) * (t - here) : t;
+        riseAt[s] = rise;
+      }
+      if (t - rise >= holdM) {
+        reach[s] = rise;
+        done[s] = true;
+        reached[s] = true;
+      }
     }
   }
 
