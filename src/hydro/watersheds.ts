@@ -54,11 +54,15 @@ export function mergeWatersheds(
   minAreaM2: number,
 ): MergedWatersheds {
   const { width, cellAreaM2 } = grid;
+  const height = labels.length / width;
   const count = links.count;
   const linkArea = new Float64Array(count + 1);
-  for (let i = 0; i < labels.length; i++) {
-    const l = labels[i] ?? 0;
-    linkArea[l] = (linkArea[l] ?? 0) + (cellAreaM2[(i / width) | 0] ?? 0);
+  for (let r = 0; r < height; r++) {
+    const a = cellAreaM2[r]!;
+    for (let i = r * width; i < (r + 1) * width; i++) {
+      const l = labels[i]!;
+      linkArea[l] = linkArea[l]! + a;
+    }
   }
   // Union–find over links; link ids are upstream before downstream (see streamLinks).
   const parent = new Int32Array(count + 1);
@@ -92,10 +96,13 @@ export function mergeWatersheds(
   }
   const unit = new Int32Array(labels.length);
   const areaM2 = new Float64Array(units + 1);
-  for (let i = 0; i < labels.length; i++) {
-    const u = unitOfLink[labels[i] ?? 0] ?? 0;
-    unit[i] = u;
-    areaM2[u] = (areaM2[u] ?? 0) + (cellAreaM2[(i / width) | 0] ?? 0);
+  for (let r = 0; r < height; r++) {
+    const a = cellAreaM2[r]!;
+    for (let i = r * width; i < (r + 1) * width; i++) {
+      const u = unitOfLink[labels[i]!]!;
+      unit[i] = u;
+      areaM2[u] = areaM2[u]! + a;
+    }
   }
   return { unit, count: units, unitOfLink, areaM2 };
 }
