@@ -6,6 +6,7 @@ import { drainageRasters } from '../src/hydro/drainage.js';
 import { fillDepressions } from '../src/hydro/fill.js';
 import { heightAboveDrainage } from '../src/hydro/hand.js';
 import { flowOrder, flowRouting } from '../src/hydro/order.js';
+import { streamLengthM } from '../src/hydro/stream-length.js';
 import { streamLinks, streamMask } from '../src/hydro/streams.js';
 import { analyseTerrain } from '../src/hydro/terrain.js';
 import { valleyBottom } from '../src/hydro/valley-bottom.js';
@@ -82,11 +83,11 @@ describe('one pass for HAND, link watersheds and valley bottom', () => {
       const grid = hillyGrid(900 + trial, 70, 55 + 5 * trial, trial % 2 === 0);
       const { filledZ } = fillDepressions(grid);
       const { dir } = flowDirections(grid, filledZ);
-      const { order, accumulationM2, stream } = flowRouting(grid, dir, filledZ, 120);
+      const { order, accumulationM2, stream, streamCells } = flowRouting(grid, dir, filledZ, 120);
       const links = streamLinks(dir, order, stream, grid.width);
       const options = trial < 2 ? {} : { baseM: 0.5, coefficientM: 3, exponent: 0.5, maxM: 2.5 };
       for (const z of [grid.z, filledZ]) {
-        const one = drainageRasters(z, dir, order, stream, links.link, accumulationM2, grid.width, options);
+        const one = drainageRasters(z, dir, order, stream, streamCells, links.link, accumulationM2, grid.width, options);
         const hand = heightAboveDrainage(z, dir, order, stream, grid.width);
         expect(Array.from(one.hand.heightM)).toEqual(Array.from(hand.heightM));
         expect(Array.from(one.hand.drainCell)).toEqual(Array.from(hand.drainCell));
@@ -95,6 +96,33 @@ describe('one pass for HAND, link watersheds and valley bottom', () => {
         expect(Array.from(one.valleyBottom)).toEqual(Array.from(valley));
         expect(valley.reduce((a, b) => a + b, 0)).toBeGreaterThan(50); // the comparison covered valley cells
       }
+    }
+  });
+
+  it('is what analyseTerrain returns, whose steps reuse each other\'s scratch rasters (one fill thread or several)', () => {
+    for (const fill of [{ threads: 1 }, { threads: 2, minCellsForThreads: 0, tileCells: 16 }]) {
+      const grid = hillyGrid(47, 90, 70, false);
+      const t = analyseTerrain(grid, { streamThresholdM2: 120, fill });
+      // References: each step on its own, with rasters of its own.
+      const { filledZ } = fillDepressions(grid);
+      const { dir } = flowDirections(grid, filledZ);
+      const order = flowOrder(dir, filledZ, grid.width);
+      const acc = flowAccumulationM2(grid, dir, order);
+      const stream = streamMask(acc, 120);
+      const links = streamLinks(dir, order, stream, grid.width);
+      const hand = heightAboveDrainage(grid.z, dir, order, stream, grid.width);
+      expect(Array.from(t.filledZ)).toEqual(Array.from(filledZ));
+      expect(Array.from(t.dir)).toEqual(Array.from(dir));
+      expect(Array.from(t.order)).toEqual(Array.from(order));
+      expect(Array.from(t.accumulationM2)).toEqual(Array.from(acc));
+      expect(Array.from(t.stream)).toEqual(Array.from(stream));
+      expect(t.links).toEqual(links);
+      expect(Array.from(t.streamLengthM)).toEqual(Array.from(streamLengthM(grid, dir, stream)));
+      expect(Array.from(t.watershed)).toEqual(Array.from(subWatersheds(dir, order, links, grid.width)));
+      expect(Array.from(t.valleyBottom)).toEqual(Array.from(valleyBottom(hand, acc)));
+      expect(Array.from(t.hand.heightM)).toEqual(Array.from(hand.heightM));
+      expect(Array.from(t.hand.drainCell)).toEqual(Array.from(hand.drainCell));
+      expect(links.count).toBeGreaterThan(3);
     }
   });
 

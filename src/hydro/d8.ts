@@ -18,6 +18,7 @@ import type { Grid } from '../grid/grid.js';
 import { isEdgeCell } from './fill.js';
 import { resolveFlats } from './flats.js';
 import { DIR_COL, DIR_FLAT, DIR_NONE, DIR_OUTLET, DIR_ROW, neighbourDistancesM, neighbourOffsets } from './neighbours.js';
+import type { RasterPool } from './raster-pool.js';
 
 /** Result of {@link flowDirections}. */
 export interface FlowDirections {
@@ -31,11 +32,13 @@ export interface FlowDirections {
 
 /**
  * D8 directions on `filledZ` (metres; normally from {@link fillDepressions}),
- * with the grid's cell sizes for slopes.
+ * with the grid's cell sizes for slopes; flat routing takes its scratch
+ * rasters from `pool` when given (raster-pool.ts).
  */
 export function flowDirections(
   grid: Pick<Grid, 'width' | 'height' | 'cellWidthM' | 'cellHeightM'>,
   filledZ: Float32Array,
+  pool?: RasterPool,
 ): FlowDirections {
   const { width, height } = grid;
   const n = width * height;
@@ -90,7 +93,7 @@ export function flowDirections(
   }
   let pitCells = 0;
   if (flatCount > 0) {
-    pitCells = resolveFlats(grid, filledZ, dir, flats.subarray(0, flatCount));
+    pitCells = resolveFlats(grid, filledZ, dir, flats.subarray(0, flatCount), pool);
   }
   return { dir, flatCells: flatCount - pitCells, pitCells };
 }

@@ -48,14 +48,14 @@ export function fillWorkerEntry(): FillWorkerEntry | null {
   return { script: bootstrap, eval: true };
 }
 
-/** Floods all tiles of `plan` on `threads` threads; edges go into `graph`. */
+/** Floods all tiles of `plan` on `threads` threads; edges go into `graph`. Returns the fill, the labels and the shared copy of `z` the threads read. */
 export function floodInThreads(
   z: Float32Array,
   plan: TilePlan,
   threads: number,
   graph: SpillGraph,
   entry: FillWorkerEntry,
-): { filled: Float32Array; label: Int32Array } {
+): { filled: Float32Array; label: Int32Array; sharedZ: Float32Array } {
   const n = plan.width * plan.height;
   const sharedZ = new Float32Array(new SharedArrayBuffer(4 * n));
   sharedZ.set(z);
@@ -85,5 +85,5 @@ export function floodInThreads(
     }
     graph.importEdges(message.edges);
   }
-  return { filled, label };
+  return { filled, label, sharedZ };
 }

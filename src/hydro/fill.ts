@@ -25,6 +25,7 @@ import type { Grid } from '../grid/grid.js';
 import { floodTiles, labelCount, planTiles } from './fill-plan.js';
 import { TileFlood } from './fill-tile.js';
 import { fillWorkerEntry, floodInThreads } from './fill-threads.js';
+import type { RasterPool } from './raster-pool.js';
 import { OUTLET_LABEL, SpillGraph } from './spill-graph.js';
 
 /** Side of the square tiles the flood works on, cells (a tile's buffers stay in cache). */
@@ -53,9 +54,10 @@ export interface FillResult {
 /**
  * Fills every depression of `grid.z` (metres) to its spill elevation; the
  * input is not changed. Large grids are flooded on several threads (same
- * result, see fill-threads.ts).
+ * result, see fill-threads.ts). With `pool`, the scratch rasters are given
+ * to it when done.
  */
-export function fillDepressions(grid: Pick<Grid, 'width' | 'height' | 'z'>, options: FillOptions = {}): FillResult {
+export function fillDepressions(grid: Pick<Grid, 'width' | 'height' | 'z'>, options: FillOptions = {}, pool?: RasterPool): FillResult {
   const { width, height, z } = grid;
   const n = width * height;
   const plan = planTiles(width, height, Math.floor(options.tileCells ?? FILL_TILE_CELLS));
@@ -64,8 +66,9 @@ export function fillDepressions(grid: Pick<Grid, 'width' | 'height' | 'z'>, opti
   const graph = new SpillGraph();
   let filled: Float32Array;
   let label: Int32Array;
+  let sharedZ: Float32Array | null = null;
   if (entry !== null) {
-    ({ filled, label } = floodInThreads(z, plan, threads, graph, entry));
+    ({ filled, label, sharedZ } = floodInThreads(z, plan, threads, graph, entry));
   } else {
     filled = new Float32Array(n);
     label = new Int32Array(n);
@@ -82,6 +85,7 @@ export function fillDepressions(grid: Pick<Grid, 'width' | 'height' | 'z'>, opti
     }
     if ((filled[i] ?? 0) > (z[i] ?? 0)) raisedCells++;
   }
+  pool?.release(label, sharedZ);
   return { filledZ: filled, raisedCells };
 }
 

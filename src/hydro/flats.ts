@@ -25,6 +25,7 @@
  */
 import type { Grid } from '../grid/grid.js';
 import { DIR_COL, DIR_FLAT as FLAT, DIR_NONE, DIR_ROW, neighbourOffsets, neighbourDistancesM } from './neighbours.js';
+import type { RasterPool } from './raster-pool.js';
 
 /** Neighbour slot: not in this flat and not a draining cell at the flat's elevation. */
 const NO_LINK = -1;
@@ -34,24 +35,26 @@ const DRAIN = -2;
 /**
  * Routes the flat cells `flats` (flat indices in row-major order, each
  * marked `DIR_FLAT` in `dir`) in place and returns the number of flat cells
- * that could not drain (left `DIR_NONE`).
+ * that could not drain (left `DIR_NONE`). Scratch rasters come from and go
+ * back to `pool` when given.
  */
 export function resolveFlats(
   grid: Pick<Grid, 'width' | 'height' | 'cellWidthM' | 'cellHeightM'>,
   z: Float32Array,
   dir: Uint8Array,
   flats: Int32Array,
+  pool?: RasterPool,
 ): number {
   const { width, height } = grid;
   const count = flats.length;
   const off = neighbourOffsets(width);
-  // 1 + flat number of each flat cell, 0 elsewhere.
-  const number = new Int32Array(width * height);
+  // 1 + flat number of each flat cell; read only where `dir` marks a flat cell (elsewhere it holds anything).
+  const number = pool ? pool.int32(width * height, false) : new Int32Array(width * height);
   for (let f = 0; f < count; f++) number[flats[f]!] = f + 1;
 
   // Neighbour links (flat number, DRAIN or NO_LINK) and edge kinds: bit 1,
   // next to higher ground; bit 2, next to a cell at this elevation that drains.
-  const link = new Int32Array(8 * count);
+  const link = pool ? pool.int32(8 * count, false) : new Int32Array(8 * count);
   const edgeKind = new Uint8Array(count);
   for (let f = 0; f < count; f++) {
     const cell = flats[f]!;
@@ -66,12 +69,12 @@ export function resolveFlats(
       if (!interior && !inside(r, c, d, width, height)) continue;
       const nb = cell + off[d]!;
       const zn = z[nb]!;
-      const k = number[nb]!;
-      if (k !== 0 && zn === zc) {
-        link[slot] = k - 1;
+      const flat = dir[nb] === FLAT;
+      if (flat && zn === zc) {
+        link[slot] = number[nb]! - 1;
       } else if (zn > zc) {
         kind |= 1;
-      } else if (zn === zc && dir[nb] !== FLAT && dir[nb] !== DIR_NONE) {
+      } else if (zn === zc && !flat && dir[nb] !== DIR_NONE) {
         kind |= 2;
         link[slot] = DRAIN;
       }
@@ -183,6 +186,7 @@ export function resolveFlats(
     dir[cell] = bestDir;
     if (bestDir === DIR_NONE) pits++; // cannot happen by construction; counted, not hidden
   }
+  pool?.release(number, link);
   return pits;
 }
 

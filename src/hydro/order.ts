@@ -6,6 +6,7 @@
  */
 import type { Grid } from '../grid/grid.js';
 import { DIR_NONE, DIR_ROW, neighbourOffsets } from './neighbours.js';
+import type { RasterPool } from './raster-pool.js';
 
 const EMITTED = 255;
 
@@ -70,19 +71,20 @@ export interface FlowRouting {
  * area is complete when the walk emits it, since all its donors came first.
  * The order and the sums are those of {@link flowOrder} followed by
  * `flowAccumulationM2` and `streamMask`, value for value (the additions
- * happen in the same sequence).
+ * happen in the same sequence). Rasters come from `pool` when given.
  */
 export function flowRouting(
   grid: Pick<Grid, 'width' | 'height' | 'cellAreaM2'>,
   dir: Uint8Array,
   z: Float32Array,
   streamThresholdM2: number,
+  pool?: RasterPool,
 ): FlowRouting {
   if (!(streamThresholdM2 > 0)) throw new Error(`stream threshold must be a positive area in m²; got ${streamThresholdM2}`);
   const { width, height, cellAreaM2 } = grid;
   const n = dir.length;
   const off = neighbourOffsets(width);
-  const donors = new Uint8Array(n);
+  const donors = pool ? pool.uint8(n, true) : new Uint8Array(n);
   let valid = 0;
   for (let i = 0; i < n; i++) {
     const d = dir[i]!;
@@ -92,9 +94,9 @@ export function flowRouting(
     }
     if (z[i] === z[i]) valid++;
   }
-  const order = new Int32Array(valid);
+  const order = pool ? pool.int32(valid, false) : new Int32Array(valid);
   const acc = new Float64Array(n);
-  const stream = new Uint8Array(n);
+  const stream = pool ? pool.uint8(n, true) : new Uint8Array(n);
   let streamCells = new Int32Array(1024);
   let streamCount = 0;
   let tail = 0;
@@ -133,5 +135,6 @@ export function flowRouting(
     }
   }
   if (tail !== valid) throw new Error(`flow directions contain a cycle: ordered ${tail} of ${valid} cells`);
+  pool?.release(donors);
   return { order, accumulationM2: acc, stream, streamCells: streamCells.slice(0, streamCount) };
 }

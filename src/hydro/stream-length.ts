@@ -6,15 +6,17 @@
  */
 import type { Grid } from '../grid/grid.js';
 import { DIR_COL, DIR_ROW } from './neighbours.js';
+import type { RasterPool } from './raster-pool.js';
 
-/** Per-cell stream length in metres (0 off the stream network). */
+/** Per-cell stream length in metres (0 off the stream network); the raster comes from `pool` when given. */
 export function streamLengthM(
   grid: Pick<Grid, 'width' | 'height' | 'cellWidthM' | 'cellHeightM'>,
   dir: Uint8Array,
   stream: Uint8Array,
+  pool?: RasterPool,
 ): Float32Array {
   const { width, height, cellWidthM, cellHeightM } = grid;
-  const out = new Float32Array(width * height);
+  const out = pool ? pool.float32(width * height, true) : new Float32Array(width * height);
   const length = new Float64Array(8);
   for (let r = 0; r < height; r++) {
     const w = cellWidthM[r] ?? 0;

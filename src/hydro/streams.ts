@@ -14,6 +14,7 @@
  * downstream, so the receiver of a stream cell is a stream cell.
  */
 import { DIR_NONE, neighbourOffsets } from './neighbours.js';
+import type { RasterPool } from './raster-pool.js';
 
 /** Default contributing-area threshold for a stream cell, m² (0.1 km², common practice, from memory). */
 export const DEFAULT_STREAM_THRESHOLD_M2 = 100_000;
@@ -46,11 +47,12 @@ export interface StreamLinks {
  * Splits the stream cells into links, using D8 `dir` and the upstream-first
  * `order` of {@link flowOrder}, or only the stream cells of that order
  * (order.ts `flowRouting` lists them): cells off the stream are skipped.
+ * Rasters come from `pool` when given.
  */
-export function streamLinks(dir: Uint8Array, order: Int32Array, stream: Uint8Array, width: number): StreamLinks {
+export function streamLinks(dir: Uint8Array, order: Int32Array, stream: Uint8Array, width: number, pool?: RasterPool): StreamLinks {
   const n = dir.length;
   const off = neighbourOffsets(width);
-  const streamDonors = new Uint8Array(n);
+  const streamDonors = pool ? pool.uint8(n, true) : new Uint8Array(n);
   for (let k = 0; k < order.length; k++) {
     const i = order[k]!;
     const d = dir[i] ?? DIR_NONE;
@@ -59,7 +61,7 @@ export function streamLinks(dir: Uint8Array, order: Int32Array, stream: Uint8Arr
       streamDonors[r] = (streamDonors[r] ?? 0) + 1;
     }
   }
-  const link = new Int32Array(n);
+  const link = pool ? pool.int32(n, true) : new Int32Array(n);
   let count = 0;
   let junctionCount = 0;
   for (let k = 0; k < order.length; k++) {
@@ -95,5 +97,6 @@ export function streamLinks(dir: Uint8Array, order: Int32Array, stream: Uint8Arr
       if (down !== id) downstream[id] = down;
     }
   }
+  pool?.release(streamDonors);
   return { link, count, downstream, firstCell, lastCell, junctions };
 }

@@ -9,6 +9,7 @@ import { drainageRasters } from './drainage.js';
 import { fillDepressions, type FillOptions } from './fill.js';
 import type { HandResult } from './hand.js';
 import { flowRouting } from './order.js';
+import { RasterPool } from './raster-pool.js';
 import { streamLengthM } from './stream-length.js';
 import { DEFAULT_STREAM_THRESHOLD_M2, streamLinks, type StreamLinks } from './streams.js';
 import type { ValleyBottomOptions } from './valley-bottom.js';
@@ -43,7 +44,7 @@ export interface Terrain {
   readonly streamLengthM: Float32Array;
   /** Link each cell drains into (0: reaches no stream). */
   readonly watershed: Int32Array;
-  /** Height above nearest drainage. */
+  /** Height above nearest drainage (its raster is built when first read). */
   readonly hand: HandResult;
   /** 1 in the valley bottom. */
   readonly valleyBottom: Uint8Array;
@@ -53,16 +54,17 @@ export interface Terrain {
 
 /** Runs the whole terrain step on `grid` (elevations in metres, NaN for NoData). */
 export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrain {
-  const fill = fillDepressions(grid, options.fill);
-  const flow = flowDirections(grid, fill.filledZ);
+  const pool = new RasterPool(); // scratch rasters of one step reused by the next (raster-pool.ts)
+  const fill = fillDepressions(grid, options.fill, pool);
+  const flow = flowDirections(grid, fill.filledZ, pool);
   // Order, contributing area and stream mask in one walk; links from the stream cells alone.
-  const routing = flowRouting(grid, flow.dir, fill.filledZ, options.streamThresholdM2 ?? DEFAULT_STREAM_THRESHOLD_M2);
+  const routing = flowRouting(grid, flow.dir, fill.filledZ, options.streamThresholdM2 ?? DEFAULT_STREAM_THRESHOLD_M2, pool);
   const { order, accumulationM2, stream } = routing;
-  const links = streamLinks(flow.dir, routing.streamCells, stream, grid.width);
-  const lengths = streamLengthM(grid, flow.dir, stream);
+  const links = streamLinks(flow.dir, routing.streamCells, stream, grid.width, pool);
+  const lengths = streamLengthM(grid, flow.dir, stream, pool);
   const handZ = options.handSurface === 'filled' ? fill.filledZ : grid.z;
   // HAND, link watersheds and valley bottom in one pass up the order.
-  const drained = drainageRasters(handZ, flow.dir, order, stream, links.link, accumulationM2, grid.width, options.valleyBottom);
+  const drained = drainageRasters(handZ, flow.dir, order, stream, routing.streamCells, links.link, accumulationM2, grid.width, options.valleyBottom, pool);
   return {
     filledZ: fill.filledZ,
     dir: flow.dir,
@@ -72,7 +74,9 @@ export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrai
     links,
     streamLengthM: lengths,
     watershed: drained.watershed,
-    hand: drained.hand,
+    get hand(): HandResult {
+      return drained.hand; // built when first read
+    },
     valleyBottom: drained.valleyBottom,
     stats: { raisedCells: fill.raisedCells, flatCells: flow.flatCells, pitCells: flow.pitCells },
   };
