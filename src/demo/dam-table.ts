@@ -5,11 +5,18 @@
  * says about it. Each special case is one row with a role.
  *
  * The story: a 2019 survey mapped the dams then standing; a 2024 survey added
- * new dams, found one breached, and a detector run on 2024 imagery proposed
- * candidates (points and lines); three structures are planned for a
- * restoration scenario. On the main stem, the new tall MS-04 of 2024 drowns
- * the older MS-05 just upstream; MS-07's crest was drawn too short on the
- * left bank, so its pond spills around that end.
+ * new dams, found MS-04 breached (its height_m is the breach invert), and a
+ * detector run on 2024 imagery proposed candidates (points MS-02, MS-11,
+ * TA-06 and TB-02, and lines); three structures are planned for a
+ * restoration scenario (MS-13, TA-09, TB-09). On the main stem the new, tall
+ * MS-05 of 2024 drowns the older MS-06 just upstream; MS-08's crest was drawn
+ * short of the left valley side, so its pond spills around that end. The
+ * ponds of MS-05, TA-03 and TB-05 hold water in the 2024 lidar (`wet`: the
+ * scene flattens them into the DEM); each spreads beyond the incised channel,
+ * wide enough for the water-surface detector's 5 × 5 window. A pond filling
+ * only the channel (a few metres wide, a couple of decimetres below its
+ * banks) is not told from dry ground in 10 cm lidar noise, so no such pond
+ * is wet here.
  */
 import type { DamStatus } from '../inventory.js';
 import type { DemoDamRole } from './types.js';
@@ -31,7 +38,11 @@ export interface DemoDamRow {
   observer?: string;
   note?: string;
   roles?: DemoDamRole[];
-  /** Flattened into the DEM as standing water when the scene is built with water surfaces. */
+  /**
+   * Flattened into the DEM as standing water when the scene is built with
+   * water surfaces. Only for ponds wider than the detector's window (they
+   * spread beyond the incised channel); see the file comment.
+   */
   wet?: boolean;
   /** Height the line's ends are drawn to (defaults: see inventory.ts). */
   reachM?: number;
@@ -42,7 +53,7 @@ export const LAYOUT_LENGTH_M = { MS: 1764, TA: 838, TB: 840 } as const;
 
 /** The demo's dams, per valley from the mouth up; ids number upstream. */
 export const DEMO_DAM_ROWS: readonly DemoDamRow[] = [
-  { id: 'MS-01', channel: 'MS', fromMouthM: 90, kind: 'line', status: 'confirmed', heightM: 0.6, measured: true, confidence: 1, year: 2019, observer: 'K.R.', wet: true },
+  { id: 'MS-01', channel: 'MS', fromMouthM: 90, kind: 'line', status: 'confirmed', heightM: 0.6, measured: true, confidence: 1, year: 2019, observer: 'K.R.' },
   { id: 'MS-02', channel: 'MS', fromMouthM: 180, kind: 'point', status: 'candidate', heightM: 0.5, measured: false, confidence: 0.41, year: 2024, roles: ['detector-point'] },
   { id: 'MS-03', channel: 'MS', fromMouthM: 250, kind: 'line', status: 'confirmed', heightM: 0.7, measured: false, confidence: 0.95, year: 2019, observer: 'J.T.' },
   {
