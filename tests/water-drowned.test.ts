@@ -106,7 +106,7 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
-  if (!process.env.KEEP) await rm(dir, { recursive: true, force: true });
+  await rm(dir, { recursive: true, force: true });
 });
 
 describe('a dam whose crest stands in the water of the pond below it', () => {
