@@ -38,6 +38,9 @@ const UPPER_H = 0.3;
 const QL2_RMSE_M = 0.1;
 
 let dir: string;
+/** In the noisy scene: today's level, and the upper dam's crest on the ground before the water (lowest crest cell + height), m. */
+let noisyLevelM: number;
+let upperCrestDryM: number;
 
 /** Room for every pond of the tests, up to 2.1 m above the lower dam's bed. */
 function valley(): Grid {
@@ -91,7 +94,10 @@ beforeAll(async () => {
   // stands over it and on upstream.
   const ground = addNoise(dry, QL2_RMSE_M, 7);
   const bedM = flattenPond(ground, dam, 0).setup.bedElevM;
-  const scene = flattenPond(ground, dam, bedM + LOWER_H - FREEBOARD_M);
+  noisyLevelM = bedM + LOWER_H - FREEBOARD_M;
+  const up = makeDam({ id: 'upper', lines: [[[-M * UPPER_H - 0.5, UPPER_Y], [M * UPPER_H + 0.5, UPPER_Y]]], heightM: UPPER_H, upstream: 'left' });
+  upperCrestDryM = flattenPond(ground, up, 0).setup.bedElevM + UPPER_H;
+  const scene = flattenPond(ground, dam, noisyLevelM);
   const rng = createRng(8);
   for (const i of scene.waterCells) scene.wet.z[i] = scene.wet.z[i]! + QL2_RMSE_M * normal(rng);
   await writeDem(join(dir, 'wet.tif'), scene.wet);
@@ -118,6 +124,8 @@ describe('a dam whose crest stands in the water of the pond below it', () => {
   });
 
   it('is drowned by that dam: no water of its own, no spill round a crest set on the water surface', () => {
+    // The scene is what the check needs: the upper crest stands under today's water by more than the noise.
+    expect(noisyLevelM - upperCrestDryM).toBeGreaterThan(2 * QL2_RMSE_M);
     const u = both.dams.find((d) => d.id === 'upper')!;
     const l = both.dams.find((d) => d.id === 'lower')!;
     expect(l.water_surface_check).toBe('found');
