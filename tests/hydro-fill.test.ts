@@ -1,9 +1,11 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { makeGrid } from '../src/grid/grid.js';
-import { fillDepressions } from '../src/hydro/fill.js';
+import { flowDirections } from '../src/hydro/d8.js';
+import { fillDepressions, fillWithDirections } from '../src/hydro/fill.js';
 import { CellSorter } from '../src/hydro/sort-cells.js';
 import { createRng } from '../src/uncertainty/random.js';
+import { referenceFlowDirections } from './helpers/flow-reference.js';
 
 /**
  * Independent reference fill, by the definition of a depressionless surface
@@ -141,6 +143,26 @@ describe('fillDepressions (priority-flood)', () => {
     expect(Array.from(parallel.filledZ)).toEqual(Array.from(serial.filledZ));
     expect(Array.from(serial.filledZ)).toEqual(Array.from(bruteForceFill(z, width, height)));
     expect(parallel.raisedCells).toBe(serial.raisedCells);
+  });
+
+  it('fills and directs on bands of rows across threads as fillDepressions then flowDirections do on one', () => {
+    // Reference fill: the brute-force definition above; reference directions: tests/helpers/flow-reference.ts.
+    for (const [threads, cellH] of [[2, 1], [3, 2.5], [4, 1]] as const) {
+      const width = 61;
+      const height = 75;
+      const z = randomDem(90 + threads, width, height, 50);
+      const grid = makeGrid({ width, height, z, transform: { x0: 0, y0: 0, dx: 1, dy: -cellH } });
+      const { fill, flow } = fillWithDirections(grid, { tileCells: 8, threads, minCellsForThreads: 0 });
+      expect(Array.from(fill.filledZ)).toEqual(Array.from(bruteForceFill(z, width, height)));
+      const serial = fillDepressions(grid, { tileCells: 8, threads: 1 });
+      expect(fill.raisedCells).toBe(serial.raisedCells);
+      const ref = referenceFlowDirections(grid, serial.filledZ);
+      expect(Array.from(flow.dir)).toEqual(Array.from(ref.dir));
+      expect(flow.pitCells).toBe(0);
+      expect(flow.flatCells).toBeGreaterThan(50);
+      const alone = flowDirections(grid, serial.filledZ);
+      expect(flow.flatCells).toBe(alone.flatCells);
+    }
   });
 
   it('fills a single pit to the lowest rim cell and never lowers a cell', () => {

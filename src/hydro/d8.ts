@@ -15,9 +15,8 @@
  *   and are counted in `pitCells`.
  */
 import type { Grid } from '../grid/grid.js';
-import { isEdgeCell } from './fill.js';
 import { resolveFlats } from './flats.js';
-import { DIR_COL, DIR_FLAT, DIR_NONE, DIR_OUTLET, DIR_ROW, neighbourDistancesM, neighbourOffsets } from './neighbours.js';
+import { DIR_COL, DIR_FLAT, DIR_NONE, DIR_OUTLET, DIR_ROW, isEdgeCell, neighbourDistancesM, neighbourOffsets } from './neighbours.js';
 import type { RasterPool } from './raster-pool.js';
 
 /** Result of {@link flowDirections}. */
@@ -44,12 +43,47 @@ export function flowDirections(
   const n = width * height;
   if (filledZ.length !== n) throw new Error(`elevation has ${filledZ.length} cells; expected ${n}`);
   const dir = new Uint8Array(n);
+  const flats = directionRows(grid, filledZ, dir, 0, height);
+  return routeFlats(grid, filledZ, dir, flats, pool);
+}
+
+/**
+ * Routes the flat cells that {@link directionRows} marked and listed
+ * (`flats`, row-major over the whole grid) and counts them; `dir` is then
+ * the finished direction raster.
+ */
+export function routeFlats(
+  grid: Pick<Grid, 'width' | 'height' | 'cellWidthM' | 'cellHeightM'>,
+  filledZ: Float32Array,
+  dir: Uint8Array,
+  flats: Int32Array,
+  pool?: RasterPool,
+): FlowDirections {
+  const pitCells = flats.length > 0 ? resolveFlats(grid, filledZ, dir, flats, pool) : 0;
+  return { dir, flatCells: flats.length - pitCells, pitCells };
+}
+
+/**
+ * D8 directions of rows `r0` … `r1` − 1 into `dir` (the rest is not
+ * touched; rows r0 − 1 and r1 of `filledZ` are read). Cells with no lower
+ * neighbour away from the edge are marked `DIR_FLAT` and returned as a list
+ * of flat indices in row-major order, for {@link routeFlats}. Row bands can
+ * be done on several threads and their lists joined in row order.
+ */
+export function directionRows(
+  grid: Pick<Grid, 'width' | 'height' | 'cellWidthM' | 'cellHeightM'>,
+  filledZ: Float32Array,
+  dir: Uint8Array,
+  r0: number,
+  r1: number,
+): Int32Array<ArrayBuffer> {
+  const { width, height } = grid;
   const off = neighbourOffsets(width);
   const dist = new Float64Array(8);
   const invDist = new Float64Array(8);
-  let flats = new Int32Array(1024); // flat cells in row-major order
+  let flats: Int32Array<ArrayBuffer> = new Int32Array(1024); // flat cells in row-major order
   let flatCount = 0;
-  for (let r = 0; r < height; r++) {
+  for (let r = r0; r < r1; r++) {
     neighbourDistancesM(grid.cellWidthM, grid.cellHeightM, r, dist);
     for (let d = 0; d < 8; d++) invDist[d] = 1 / (dist[d] ?? 1);
     const invCardinalN = invDist[0] ?? 0;
@@ -91,11 +125,7 @@ export function flowDirections(
       }
     }
   }
-  let pitCells = 0;
-  if (flatCount > 0) {
-    pitCells = resolveFlats(grid, filledZ, dir, flats.subarray(0, flatCount), pool);
-  }
-  return { dir, flatCells: flatCount - pitCells, pitCells };
+  return flats.slice(0, flatCount);
 }
 
 /** The same list with twice the room. */

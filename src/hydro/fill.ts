@@ -24,9 +24,10 @@ import { availableParallelism } from 'node:os';
 import type { Grid } from '../grid/grid.js';
 import { floodTiles, labelCount, planTiles } from './fill-plan.js';
 import { TileFlood } from './fill-tile.js';
-import { fillWorkerEntry, floodInThreads } from './fill-threads.js';
+import { directionRows, routeFlats, type FlowDirections } from './d8.js';
+import { FillThreads, fillWorkerEntry, finishBand, type RowsGeometry } from './fill-threads.js';
 import type { RasterPool } from './raster-pool.js';
-import { OUTLET_LABEL, SpillGraph } from './spill-graph.js';
+import { SpillGraph } from './spill-graph.js';
 
 /** Side of the square tiles the flood works on, cells (a tile's buffers stay in cache). */
 export const FILL_TILE_CELLS = 256;
@@ -58,35 +59,69 @@ export interface FillResult {
  * to it when done.
  */
 export function fillDepressions(grid: Pick<Grid, 'width' | 'height' | 'z'>, options: FillOptions = {}, pool?: RasterPool): FillResult {
+  return fillAndDirect(grid, null, options, pool).fill;
+}
+
+/**
+ * {@link fillDepressions} followed by d8.ts `flowDirections` on the filled
+ * DEM, with the same results; when the fill runs on several threads, its
+ * last pass and the D8 pass are split between them by bands of rows too.
+ */
+export function fillWithDirections(
+  grid: Pick<Grid, 'width' | 'height' | 'z' | 'cellWidthM' | 'cellHeightM'>,
+  options: FillOptions = {},
+  pool?: RasterPool,
+): { fill: FillResult; flow: FlowDirections } {
+  const { fill, dir, flats } = fillAndDirect(grid, grid, options, pool);
+  return { fill, flow: routeFlats(grid, fill.filledZ, dir!, flats!, pool) };
+}
+
+/** The fill, and with `geometry` the D8 pass with flat cells marked and listed (not routed yet). */
+function fillAndDirect(
+  grid: Pick<Grid, 'width' | 'height' | 'z'>,
+  geometry: RowsGeometry | null,
+  options: FillOptions,
+  pool: RasterPool | undefined,
+): { fill: FillResult; dir: Uint8Array | null; flats: Int32Array | null } {
   const { width, height, z } = grid;
   const n = width * height;
   const plan = planTiles(width, height, Math.floor(options.tileCells ?? FILL_TILE_CELLS));
   const threads = Math.max(1, Math.min(options.threads ?? Math.min(8, availableParallelism()), plan.tileRows));
   const entry = threads > 1 && n >= (options.minCellsForThreads ?? FILL_THREAD_MIN_CELLS) ? fillWorkerEntry() : null;
   const graph = new SpillGraph();
+  let run: FillThreads | null = null;
   let filled: Float32Array;
   let label: Int32Array;
-  let sharedZ: Float32Array | null = null;
   if (entry !== null) {
-    ({ filled, label, sharedZ } = floodInThreads(z, plan, threads, graph, entry));
+    run = FillThreads.flood(z, plan, threads, graph, entry, geometry !== null);
+    ({ filled, label } = run);
   } else {
     filled = new Float32Array(n);
     label = new Int32Array(n);
     floodTiles(z, plan, 0, 1, new TileFlood(plan.tile, plan.tile), filled, label, graph);
   }
-  linkTiles(z, width, height, plan.tile, label, graph);
-  const level = graph.solve(labelCount(plan));
-  let raisedCells = 0;
-  for (let i = 0; i < n; i++) {
-    const l = label[i] ?? 0;
-    if (l > OUTLET_LABEL) {
-      const v = level[l] ?? Infinity;
-      if (v > (filled[i] ?? 0) && v !== Infinity) filled[i] = v;
+  try {
+    linkTiles(z, width, height, plan.tile, label, graph);
+    const level = graph.solve(labelCount(plan));
+    let raisedCells: number;
+    let dir: Uint8Array | null = null;
+    let flats: Int32Array | null = null;
+    if (run !== null && geometry !== null) {
+      dir = new Uint8Array(new SharedArrayBuffer(n));
+      ({ raised: raisedCells, flats } = run.finishRows(z, level, geometry, dir));
+    } else {
+      raisedCells = finishBand(z, filled, label, level, 0, n);
+      if (geometry !== null) {
+        dir = new Uint8Array(n);
+        flats = directionRows(geometry, filled, dir, 0, height);
+      }
     }
-    if ((filled[i] ?? 0) > (z[i] ?? 0)) raisedCells++;
+    // A lost worker may still read the label and z copies: only then are they not reused.
+    if (!(run?.anyLost ?? false)) pool?.release(label, run?.sharedZ);
+    return { fill: { filledZ: filled, raisedCells }, dir, flats };
+  } finally {
+    run?.close();
   }
-  pool?.release(label, sharedZ);
-  return { filledZ: filled, raisedCells };
 }
 
 /** Adds a graph edge for every pair of neighbouring cells in different tiles (both are tile-edge seeds). */
@@ -119,18 +154,5 @@ function linkTiles(z: Float32Array, width: number, height: number, tile: number,
   }
 }
 
-/** True for a valid cell on the grid edge or next to a NoData cell (where water can leave). */
-export function isEdgeCell(z: Float32Array, width: number, height: number, r: number, c: number): boolean {
-  if (r === 0 || c === 0 || r === height - 1 || c === width - 1) return true;
-  const i = r * width + c;
-  return (
-    Number.isNaN(z[i - width - 1] ?? 0) ||
-    Number.isNaN(z[i - width] ?? 0) ||
-    Number.isNaN(z[i - width + 1] ?? 0) ||
-    Number.isNaN(z[i - 1] ?? 0) ||
-    Number.isNaN(z[i + 1] ?? 0) ||
-    Number.isNaN(z[i + width - 1] ?? 0) ||
-    Number.isNaN(z[i + width] ?? 0) ||
-    Number.isNaN(z[i + width + 1] ?? 0)
-  );
-}
+/** True for a valid cell on the grid edge or next to a NoData cell (neighbours.ts; kept here for callers of this module). */
+export { isEdgeCell } from './neighbours.js';

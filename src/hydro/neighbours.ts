@@ -39,3 +39,19 @@ export function neighbourDistancesM(cellWidthM: Float64Array, cellHeightM: numbe
     out[d] = dr === 0 ? w : dc === 0 ? cellHeightM : diag;
   }
 }
+
+/** True for a valid cell on the grid edge or next to a NoData cell (where water can leave). */
+export function isEdgeCell(z: Float32Array, width: number, height: number, r: number, c: number): boolean {
+  if (r === 0 || c === 0 || r === height - 1 || c === width - 1) return true;
+  const i = r * width + c;
+  return (
+    Number.isNaN(z[i - width - 1] ?? 0) ||
+    Number.isNaN(z[i - width] ?? 0) ||
+    Number.isNaN(z[i - width + 1] ?? 0) ||
+    Number.isNaN(z[i - 1] ?? 0) ||
+    Number.isNaN(z[i + 1] ?? 0) ||
+    Number.isNaN(z[i + width - 1] ?? 0) ||
+    Number.isNaN(z[i + width] ?? 0) ||
+    Number.isNaN(z[i + width + 1] ?? 0)
+  );
+}

@@ -4,9 +4,8 @@
  * bottom. Each piece is also exported on its own.
  */
 import type { Grid } from '../grid/grid.js';
-import { flowDirections } from './d8.js';
 import { drainageRasters } from './drainage.js';
-import { fillDepressions, type FillOptions } from './fill.js';
+import { fillWithDirections, type FillOptions } from './fill.js';
 import type { HandResult } from './hand.js';
 import { flowRouting } from './order.js';
 import { RasterPool } from './raster-pool.js';
@@ -55,8 +54,8 @@ export interface Terrain {
 /** Runs the whole terrain step on `grid` (elevations in metres, NaN for NoData). */
 export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrain {
   const pool = new RasterPool(); // scratch rasters of one step reused by the next (raster-pool.ts)
-  const fill = fillDepressions(grid, options.fill, pool);
-  const flow = flowDirections(grid, fill.filledZ, pool);
+  // Fill and D8 together: on several threads the fill's last pass and the D8 pass are split by rows.
+  const { fill, flow } = fillWithDirections(grid, options.fill, pool);
   // Order, contributing area and stream mask in one walk; links from the stream cells alone.
   const routing = flowRouting(grid, flow.dir, fill.filledZ, options.streamThresholdM2 ?? DEFAULT_STREAM_THRESHOLD_M2, pool);
   const { order, accumulationM2, stream } = routing;
