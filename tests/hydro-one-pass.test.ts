@@ -6,7 +6,7 @@ import { drainageRasters } from '../src/hydro/drainage.js';
 import { fillDepressions } from '../src/hydro/fill.js';
 import { heightAboveDrainage } from '../src/hydro/hand.js';
 import { flowOrder, flowRouting } from '../src/hydro/order.js';
-import { streamLengthM } from '../src/hydro/stream-length.js';
+import { streamCellLengthsM, streamLengthM } from '../src/hydro/stream-length.js';
 import { streamLinks, streamMask } from '../src/hydro/streams.js';
 import { analyseTerrain } from '../src/hydro/terrain.js';
 import { valleyBottom } from '../src/hydro/valley-bottom.js';
@@ -117,7 +117,14 @@ describe('one pass for HAND, link watersheds and valley bottom', () => {
       expect(Array.from(t.accumulationM2)).toEqual(Array.from(acc));
       expect(Array.from(t.stream)).toEqual(Array.from(stream));
       expect(t.links).toEqual(links);
-      expect(Array.from(t.streamLengthM)).toEqual(Array.from(streamLengthM(grid, dir, stream)));
+      const lengths = streamLengthM(grid, dir, stream);
+      expect(Array.from(t.streamLengthM)).toEqual(Array.from(lengths));
+      // The list form: every stream cell in row-major order with its length from the raster.
+      const streamCells: number[] = [];
+      for (let i = 0; i < stream.length; i++) if (stream[i] === 1) streamCells.push(i);
+      expect(Array.from(t.streamCellLengths.cells)).toEqual(streamCells);
+      expect(Array.from(t.streamCellLengths.lengthM)).toEqual(streamCells.map((i) => lengths[i]!));
+      expect(Array.from(streamCellLengthsM(grid, dir, stream).lengthM)).toEqual(streamCells.map((i) => lengths[i]!));
       expect(Array.from(t.watershed)).toEqual(Array.from(subWatersheds(dir, order, links, grid.width)));
       expect(Array.from(t.valleyBottom)).toEqual(Array.from(valleyBottom(hand, acc)));
       expect(Array.from(t.hand.heightM)).toEqual(Array.from(hand.heightM));

@@ -15,21 +15,11 @@ export function streamLengthM(
   stream: Uint8Array,
   pool?: RasterPool,
 ): Float32Array {
-  const { width, height, cellWidthM, cellHeightM } = grid;
+  const { width, height } = grid;
   const out = pool ? pool.float32(width * height, true) : new Float32Array(width * height);
   const length = new Float64Array(8);
   for (let r = 0; r < height; r++) {
-    const w = cellWidthM[r] ?? 0;
-    for (let d = 0; d < 8; d++) {
-      const dr = DIR_ROW[d] ?? 0;
-      const dc = DIR_COL[d] ?? 0;
-      if (dr === 0) length[d] = w;
-      else if (dc === 0) length[d] = cellHeightM;
-      else {
-        const wm = 0.5 * (w + (cellWidthM[r + dr] ?? w));
-        length[d] = Math.sqrt(wm * wm + cellHeightM * cellHeightM);
-      }
-    }
+    linkLengthsM(grid, r, length);
     const start = r * width;
     for (let i = start; i < start + width; i++) {
       const d = dir[i] ?? 255;
@@ -37,4 +27,54 @@ export function streamLengthM(
     }
   }
   return out;
+}
+
+/** The stream cells in row-major order and the length each carries, m (the non-zero cells of {@link streamLengthM} and the zeros among the stream cells). */
+export interface StreamCellLengths {
+  readonly cells: Int32Array;
+  /** As {@link streamLengthM} stores it (Float32). */
+  readonly lengthM: Float32Array;
+}
+
+/** {@link streamLengthM} for the stream cells only, as lists (no raster). */
+export function streamCellLengthsM(grid: Pick<Grid, 'width' | 'height' | 'cellWidthM' | 'cellHeightM'>, dir: Uint8Array, stream: Uint8Array): StreamCellLengths {
+  const { width, height } = grid;
+  let count = 0;
+  for (let i = 0; i < stream.length; i++) count += stream[i]!;
+  const cells = new Int32Array(count);
+  const lengthM = new Float32Array(count);
+  const length = new Float64Array(8);
+  let k = 0;
+  for (let r = 0; r < height; r++) {
+    const start = r * width;
+    let found = false;
+    for (let i = start; i < start + width; i++) {
+      if (stream[i] !== 1) continue;
+      if (!found) {
+        linkLengthsM(grid, r, length);
+        found = true;
+      }
+      const d = dir[i] ?? 255;
+      cells[k] = i;
+      lengthM[k] = d < 8 ? length[d]! : 0;
+      k++;
+    }
+  }
+  return { cells, lengthM };
+}
+
+/** Length of the D8 link in each direction from a cell of row `r`, metres, into `out` (length 8). */
+function linkLengthsM(grid: Pick<Grid, 'cellWidthM' | 'cellHeightM'>, r: number, out: Float64Array): void {
+  const { cellWidthM, cellHeightM } = grid;
+  const w = cellWidthM[r] ?? 0;
+  for (let d = 0; d < 8; d++) {
+    const dr = DIR_ROW[d] ?? 0;
+    const dc = DIR_COL[d] ?? 0;
+    if (dr === 0) out[d] = w;
+    else if (dc === 0) out[d] = cellHeightM;
+    else {
+      const wm = 0.5 * (w + (cellWidthM[r + dr] ?? w));
+      out[d] = Math.sqrt(wm * wm + cellHeightM * cellHeightM);
+    }
+  }
 }

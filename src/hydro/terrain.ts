@@ -9,7 +9,7 @@ import { fillWithDirections, type FillOptions } from './fill.js';
 import type { HandResult } from './hand.js';
 import { flowRouting } from './order.js';
 import { RasterPool } from './raster-pool.js';
-import { streamLengthM } from './stream-length.js';
+import { streamCellLengthsM, streamLengthM, type StreamCellLengths } from './stream-length.js';
 import { DEFAULT_STREAM_THRESHOLD_M2, streamLinks, type StreamLinks } from './streams.js';
 import type { ValleyBottomOptions } from './valley-bottom.js';
 
@@ -39,8 +39,10 @@ export interface Terrain {
   readonly stream: Uint8Array;
   /** Stream links. */
   readonly links: StreamLinks;
-  /** Stream length carried by each cell, m. */
+  /** Stream length carried by each cell, m (the raster is built when first read). */
   readonly streamLengthM: Float32Array;
+  /** The same for the stream cells only, as lists in row-major order. */
+  readonly streamCellLengths: StreamCellLengths;
   /** Link each cell drains into (0: reaches no stream). */
   readonly watershed: Int32Array;
   /** Height above nearest drainage (its raster is built when first read). */
@@ -60,9 +62,10 @@ export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrai
   const routing = flowRouting(grid, flow.dir, fill.filledZ, options.streamThresholdM2 ?? DEFAULT_STREAM_THRESHOLD_M2, pool);
   const { order, accumulationM2, stream } = routing;
   const links = streamLinks(flow.dir, routing.streamCells, stream, grid.width, pool);
-  const lengths = streamLengthM(grid, flow.dir, stream, pool);
+  const lengths = streamCellLengthsM(grid, flow.dir, stream);
   const handZ = options.handSurface === 'filled' ? fill.filledZ : grid.z;
   // HAND, link watersheds and valley bottom in one pass up the order.
+  let lengthRaster: Float32Array | null = null;
   const drained = drainageRasters(handZ, flow.dir, order, stream, routing.streamCells, links.link, accumulationM2, grid.width, options.valleyBottom, pool);
   return {
     filledZ: fill.filledZ,
@@ -71,7 +74,11 @@ export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrai
     accumulationM2,
     stream,
     links,
-    streamLengthM: lengths,
+    streamCellLengths: lengths,
+    get streamLengthM(): Float32Array {
+      lengthRaster ??= streamLengthM(grid, flow.dir, stream); // built when first read
+      return lengthRaster;
+    },
     watershed: drained.watershed,
     get hand(): HandResult {
       return drained.hand; // built when first read

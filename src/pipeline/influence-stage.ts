@@ -30,6 +30,7 @@ import type { Grid } from '../grid/grid.js';
 import { rasteriseLines } from '../grid/rasterise-line.js';
 import { xToCol, yToRow, type GeoTransform } from '../grid/transform.js';
 import { streamPolylines } from '../hydro/stream-lines.js';
+import type { StreamCellLengths } from '../hydro/stream-length.js';
 import { DEFAULT_STREAM_THRESHOLD_M2, type StreamLinks } from '../hydro/streams.js';
 import { analyseTerrain } from '../hydro/terrain.js';
 import { VALLEY_BOTTOM_DEFAULTS, type ValleyBottomOptions } from '../hydro/valley-bottom.js';
@@ -173,7 +174,7 @@ export async function runInfluenceStage(inp: InfluenceStageInputs): Promise<Infl
     valley = vb.mask;
     warnings.push(...vb.warnings);
   }
-  const geo = unitGeography(grid, labels, units.length, terrain.streamLengthM, valley, terrain.links);
+  const geo = unitGeography(grid, labels, units.length, terrain.streamCellLengths, valley, terrain.links);
   const streams = streamLines(grid, terrain, labels, unitOfLink, geo.linkLengthM);
   const watershedsS = (performance.now() - t) / 1000;
   terrain = null; // the terrain's rasters are not needed any more
@@ -324,13 +325,15 @@ function checkMemory(cells: number, dem: DemSource, polygons: boolean): void {
 
 /**
  * Per watershed: its area, stream length and valley-bottom area, summed in
- * row-major order; and per stream link its length (one pass over the cells).
+ * row-major order; and per stream link its length. Areas take one pass
+ * over the cells; lengths only the stream cells (listed in row-major order,
+ * so the sums are the same as over every cell).
  */
 function unitGeography(
   grid: Grid,
   labels: Int32Array,
   count: number,
-  streamLengthM: Float32Array,
+  streamLengths: StreamCellLengths,
   valley: Uint8Array,
   links: StreamLinks,
 ): { areaM2: Float64Array; streamLengthM: Float64Array; valleyBottomM2: Float64Array; linkLengthM: Float64Array } {
@@ -344,14 +347,20 @@ function unitGeography(
     const a = cellAreaM2[r]!;
     const base = r * width;
     for (let i = base; i < base + width; i++) {
-      const len = streamLengthM[i]!;
-      if (len !== 0) linkLengthM[link[i]!]! += len;
       const l = labels[i]!;
       if (l === 0) continue;
       areaM2[l]! += a;
-      lengthM[l]! += len;
       if (valley[i] === 1) valleyM2[l]! += a;
     }
+  }
+  const { cells, lengthM: cellLengthM } = streamLengths;
+  for (let k = 0; k < cells.length; k++) {
+    const len = cellLengthM[k]!;
+    if (len === 0) continue;
+    const i = cells[k]!;
+    linkLengthM[link[i]!]! += len;
+    const l = labels[i]!;
+    if (l !== 0) lengthM[l]! += len;
   }
   return { areaM2: areaM2.subarray(1), streamLengthM: lengthM.subarray(1), valleyBottomM2: valleyM2.subarray(1), linkLengthM };
 }
