@@ -69,6 +69,12 @@ export interface RowsJob {
   cellHeightM: number;
   /** Shared direction raster the band's codes go into. */
   dir: Uint8Array;
+  /**
+   * Buffers to touch page by page once the answer is sent (raster-pool.ts
+   * `prepare`): later steps' rasters, whose page faults are then taken on
+   * the worker. Only 0 is written, and only where 0 is read.
+   */
+  touch: SharedArrayBuffer[];
 }
 
 /** A kept worker's answer to a {@link RowsJob}. */
@@ -101,7 +107,7 @@ export class FillThreads {
   readonly label: Int32Array;
   readonly sharedZ: Float32Array;
   private readonly plan: TilePlan;
-  private readonly workers: { worker: Worker; port: MessageChannel['port1']; lost: boolean }[];
+  private readonly workers: { worker: Worker; port: MessageChannel['port1']; lost: boolean; touching: boolean }[];
   private readonly done: Int32Array;
   private readonly go: Int32Array;
 
@@ -130,7 +136,7 @@ export class FillThreads {
       const data: FillWorkerData = { z: sharedZ, filled: run.filled, label: run.label, plan, first: k, stride: threads, port: port2, done: run.done, go: run.go, slot: k, keep };
       const worker = new Worker(entry.script, { workerData: data, transferList: [port2], eval: entry.eval });
       worker.unref();
-      run.workers.push({ worker, port: port1, lost: false });
+      run.workers.push({ worker, port: port1, lost: false, touching: false });
     }
     floodTiles(sharedZ, plan, 0, threads, new TileFlood(plan.tile, plan.tile), run.filled, run.label, graph);
     for (let k = 1; k < threads; k++) {
@@ -158,16 +164,19 @@ export class FillThreads {
    * D8 pass, by bands of rows: this thread takes the first band, each kept
    * worker one more. Writes the shared `dir`; returns the raised cells and
    * the flat cells in row-major order. `z` is the DEM this thread compares
-   * with to count raised cells.
+   * with to count raised cells. The first kept worker then touches the
+   * pages of `touch` (see {@link RowsJob.touch}) while this thread goes on.
    */
-  finishRows(z: Float32Array, level: Float64Array, geometry: RowsGeometry, dir: Uint8Array): { raised: number; flats: Int32Array } {
+  finishRows(z: Float32Array, level: Float64Array, geometry: RowsGeometry, dir: Uint8Array, touch: SharedArrayBuffer[] = []): { raised: number; flats: Int32Array } {
     const { width, height } = geometry;
     const bands = this.workers.length + 1;
     const bandRow = (k: number): number => Math.floor((k * height) / bands);
     for (let k = 1; k < bands; k++) {
       const w = this.workers[k - 1]!;
       if (w.lost) continue;
-      const job: RowsJob = { level, r0: bandRow(k), r1: bandRow(k + 1), cellWidthM: geometry.cellWidthM, cellHeightM: geometry.cellHeightM, dir };
+      const first = this.workers.findIndex((v) => !v.lost) === k - 1;
+      w.touching = first && touch.length > 0;
+      const job: RowsJob = { level, r0: bandRow(k), r1: bandRow(k + 1), cellWidthM: geometry.cellWidthM, cellHeightM: geometry.cellHeightM, dir, touch: first ? touch : [] };
       w.port.postMessage(job);
       Atomics.store(this.go, k, GO_ROWS);
       Atomics.notify(this.go, k);
@@ -207,13 +216,13 @@ export class FillThreads {
     return { raised, flats };
   }
 
-  /** Lets every worker go (kept ones are told to stop) and ends them. */
+  /** Lets every worker go (kept ones are told to stop) and ends them; one still touching pages ends by itself. */
   close(): void {
     this.workers.forEach((w, j) => {
       Atomics.store(this.go, j + 1, GO_STOP);
       Atomics.notify(this.go, j + 1);
       w.port.close();
-      void w.worker.terminate();
+      if (!w.touching || w.lost) void w.worker.terminate();
     });
   }
 }

@@ -4,7 +4,8 @@
  * its spill-graph edges on `port` and raises its flag in `done`. A kept
  * worker then waits for a rows job: it finishes the fill of its band of
  * rows, raises its flag, waits until every band is finished, writes the
- * band's D8 directions and posts the band's raised cells and flat cells.
+ * band's D8 directions and posts the band's raised cells and flat cells,
+ * and touches the pages of the buffers it was given for later rasters.
  */
 import { receiveMessageOnPort, workerData, type MessagePort } from 'node:worker_threads';
 import { directionRows } from './d8.js';
@@ -30,6 +31,9 @@ export interface FillWorkerData {
   /** Stay for a rows job after the flood. */
   keep: boolean;
 }
+
+/** 32-bit words in a 4 KiB memory page (the smallest page size; touching more often costs little). */
+const PAGE_WORDS = 1024;
 
 /** Longest wait for the main thread's next command, milliseconds (then the worker gives up). */
 const COMMAND_TIMEOUT_MS = 10 * 60 * 1000;
@@ -65,4 +69,9 @@ function rowsJob(): void {
   const answer: RowsAnswer = { raised, flats };
   data.port.postMessage(answer, [flats.buffer]);
   raise(3);
+  // Later rasters' pages: a write to each (0 where 0 is found, so data already there stays).
+  for (const buffer of job.touch) {
+    const words = new Int32Array(buffer);
+    for (let i = 0; i < words.length; i += PAGE_WORDS) Atomics.compareExchange(words, i, 0, 0);
+  }
 }

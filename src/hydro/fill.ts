@@ -65,7 +65,8 @@ export function fillDepressions(grid: Pick<Grid, 'width' | 'height' | 'z'>, opti
 /**
  * {@link fillDepressions} followed by d8.ts `flowDirections` on the filled
  * DEM, with the same results; when the fill runs on several threads, its
- * last pass and the D8 pass are split between them by bands of rows too.
+ * last pass and the D8 pass are split between them by bands of rows too,
+ * and a worker then touches the pages of the buffers prepared in `pool`.
  */
 export function fillWithDirections(
   grid: Pick<Grid, 'width' | 'height' | 'z' | 'cellWidthM' | 'cellHeightM'>,
@@ -108,7 +109,7 @@ function fillAndDirect(
     let flats: Int32Array | null = null;
     if (run !== null && geometry !== null) {
       dir = new Uint8Array(new SharedArrayBuffer(n));
-      ({ raised: raisedCells, flats } = run.finishRows(z, level, geometry, dir));
+      ({ raised: raisedCells, flats } = run.finishRows(z, level, geometry, dir, pool?.untouched() ?? []));
     } else {
       raisedCells = finishBand(z, filled, label, level, 0, n);
       if (geometry !== null) {

@@ -95,7 +95,7 @@ export function flowRouting(
     if (z[i] === z[i]) valid++;
   }
   const order = pool ? pool.int32(valid, false) : new Int32Array(valid);
-  const acc = new Float64Array(n);
+  const acc = pool ? pool.float64(n, true) : new Float64Array(n);
   const stream = pool ? pool.uint8(n, true) : new Uint8Array(n);
   let streamCells = new Int32Array(1024);
   let streamCount = 0;

@@ -56,6 +56,10 @@ export interface Terrain {
 /** Runs the whole terrain step on `grid` (elevations in metres, NaN for NoData). */
 export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrain {
   const pool = new RasterPool(); // scratch rasters of one step reused by the next (raster-pool.ts)
+  // Rasters of the later steps, prepared now so a fill worker can take their page faults meanwhile:
+  // contributing area, donor counts and stream mask (flowRouting), links, drainage cells and link watersheds.
+  const n = grid.width * grid.height;
+  pool.prepare([8 * n, n, n, 4 * n, 4 * n]);
   // Fill and D8 together: on several threads the fill's last pass and the D8 pass are split by rows.
   const { fill, flow } = fillWithDirections(grid, options.fill, pool);
   // Order, contributing area and stream mask in one walk; links from the stream cells alone.
