@@ -124,7 +124,10 @@ describe('one pass for HAND, link watersheds and valley bottom', () => {
       for (let i = 0; i < stream.length; i++) if (stream[i] === 1) streamCells.push(i);
       expect(Array.from(t.streamCellLengths.cells)).toEqual(streamCells);
       expect(Array.from(t.streamCellLengths.lengthM)).toEqual(streamCells.map((i) => lengths[i]!));
-      expect(Array.from(streamCellLengthsM(grid, dir, stream).lengthM)).toEqual(streamCells.map((i) => lengths[i]!));
+      const shuffled = Int32Array.from(streamCells).reverse();
+      const listed = streamCellLengthsM(grid, dir, shuffled);
+      expect(Array.from(listed.cells)).toEqual(streamCells);
+      expect(Array.from(listed.lengthM)).toEqual(streamCells.map((i) => lengths[i]!));
       expect(Array.from(t.watershed)).toEqual(Array.from(subWatersheds(dir, order, links, grid.width)));
       expect(Array.from(t.valleyBottom)).toEqual(Array.from(valleyBottom(hand, acc)));
       expect(Array.from(t.hand.heightM)).toEqual(Array.from(hand.heightM));

@@ -36,29 +36,26 @@ export interface StreamCellLengths {
   readonly lengthM: Float32Array;
 }
 
-/** {@link streamLengthM} for the stream cells only, as lists (no raster). */
-export function streamCellLengthsM(grid: Pick<Grid, 'width' | 'height' | 'cellWidthM' | 'cellHeightM'>, dir: Uint8Array, stream: Uint8Array): StreamCellLengths {
-  const { width, height } = grid;
-  let count = 0;
-  for (let i = 0; i < stream.length; i++) count += stream[i]!;
-  const cells = new Int32Array(count);
-  const lengthM = new Float32Array(count);
+/**
+ * {@link streamLengthM} for the stream cells only, as lists (no raster):
+ * `streamCells` lists every stream cell once, in any order (order.ts
+ * `flowRouting` lists them in flow order).
+ */
+export function streamCellLengthsM(grid: Pick<Grid, 'width' | 'height' | 'cellWidthM' | 'cellHeightM'>, dir: Uint8Array, streamCells: Int32Array): StreamCellLengths {
+  const { width } = grid;
+  const cells = Int32Array.from(streamCells).sort();
+  const lengthM = new Float32Array(cells.length);
   const length = new Float64Array(8);
-  let k = 0;
-  for (let r = 0; r < height; r++) {
-    const start = r * width;
-    let found = false;
-    for (let i = start; i < start + width; i++) {
-      if (stream[i] !== 1) continue;
-      if (!found) {
-        linkLengthsM(grid, r, length);
-        found = true;
-      }
-      const d = dir[i] ?? 255;
-      cells[k] = i;
-      lengthM[k] = d < 8 ? length[d]! : 0;
-      k++;
+  let row = -1;
+  for (let k = 0; k < cells.length; k++) {
+    const i = cells[k]!;
+    const r = (i / width) | 0;
+    if (r !== row) {
+      linkLengthsM(grid, r, length);
+      row = r;
     }
+    const d = dir[i] ?? 255;
+    lengthM[k] = d < 8 ? length[d]! : 0;
   }
   return { cells, lengthM };
 }

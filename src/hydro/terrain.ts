@@ -66,7 +66,7 @@ export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrai
   const routing = flowRouting(grid, flow.dir, fill.filledZ, options.streamThresholdM2 ?? DEFAULT_STREAM_THRESHOLD_M2, pool);
   const { order, accumulationM2, stream } = routing;
   const links = streamLinks(flow.dir, routing.streamCells, stream, grid.width, pool);
-  const lengths = streamCellLengthsM(grid, flow.dir, stream);
+  const lengths = streamCellLengthsM(grid, flow.dir, routing.streamCells);
   const handZ = options.handSurface === 'filled' ? fill.filledZ : grid.z;
   // HAND, link watersheds and valley bottom in one pass up the order.
   let lengthRaster: Float32Array | null = null;
