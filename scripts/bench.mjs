@@ -8,6 +8,7 @@
 // and, with GRASS, r.watershed on the same DEM beside it.
 //
 // Usage: npm run bench [-- --size 5000 --dams 500 --repeats 3 --seed 7]
+//        npm run bench -- --only influence   (the landscape, then the influence stage and r.watershed only)
 import { execFileSync, spawnSync } from 'node:child_process';
 import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
@@ -23,6 +24,11 @@ const size = Number(args.size ?? 5000);
 const damCount = Number(args.dams ?? 500);
 const repeats = Number(args.repeats ?? 3);
 const seed = Number(args.seed ?? 1);
+const only = args.only ?? 'all';
+if (only !== 'all' && only !== 'influence') {
+  console.error(`--only takes "influence" (or leave it out for the whole bench); got "${only}"`);
+  process.exit(2);
+}
 const root = resolve('bench-out');
 rmSync(root, { recursive: true, force: true });
 mkdirSync(root, { recursive: true });
@@ -51,28 +57,33 @@ function estimateRuns(draws) {
   }
   return runs;
 }
-const runs = estimateRuns(0);
-const drawRuns = estimateRuns(1000);
-const walls = runs.map((r) => r.wallS);
-const rss = runs.map((r) => r.maxRssMiB);
-const r0 = runs[0];
-line('estimate, deterministic (median)', `${median(walls).toFixed(2)} s  [min ${Math.min(...walls).toFixed(2)}, max ${Math.max(...walls).toFixed(2)}; ${repeats} runs]  goal < 20 s`);
-line('  peak memory (median)', `${median(rss).toFixed(0)} MiB  goal < 2048 MiB`);
-line('  dams estimated', `${r0.damsEstimated} of ${scene.dams.length}`);
-line('  cells visited by the floods', `${r0.cellsVisited.toLocaleString('en-US')}  (${(r0.cellsVisited / median(walls) / 1e6).toFixed(2)} M cells/s of run wall time)`);
-line('  total storage', `${r0.storageM3.toFixed(0)} m³`);
-const dWalls = drawRuns.map((r) => r.wallS);
-line('estimate, 1,000 draws (median)', `${median(dWalls).toFixed(2)} s  (draws stage ${median(drawRuns.map((r) => r.drawsS)).toFixed(2)} s; peak ${median(drawRuns.map((r) => r.maxRssMiB)).toFixed(0)} MiB)`);
-line('  ratio to deterministic', `${(median(dWalls) / median(walls)).toFixed(2)} ×  goal < 2 ×`);
-const rlake = await rlakeSideBySide({ demPath: inputs.demPath, damsPath: inputs.damsPath, work: join(root, 'rlake'), count: 10 });
-if (rlake) {
-  line('r.lake, 10 dams (flood only)', `${rlake.rlakeS.toFixed(2)} s`);
-  line('pondage, same 10 dams (fill only)', `${rlake.pondageS.toFixed(3)} s`);
-  line('time ratio r.lake / pondage', `${(rlake.rlakeS / rlake.pondageS).toFixed(1)} ×  (same levels; cell counts agree on ${rlake.agree} of ${rlake.count})`);
-  for (const m of rlake.mismatches) line(`  ${m.dam}: pondage / r.lake cells`, `${m.pondage} / ${m.rlake}`);
-} else {
-  line('r.lake side by side', 'skipped (GRASS GIS not installed: apt-get install grass-core)');
+// The estimate, deterministic and with draws, and r.lake beside it (skipped with --only influence).
+async function estimateSection() {
+  const runs = estimateRuns(0);
+  const drawRuns = estimateRuns(1000);
+  const walls = runs.map((r) => r.wallS);
+  const rss = runs.map((r) => r.maxRssMiB);
+  const r0 = runs[0];
+  line('estimate, deterministic (median)', `${median(walls).toFixed(2)} s  [min ${Math.min(...walls).toFixed(2)}, max ${Math.max(...walls).toFixed(2)}; ${repeats} runs]  goal < 20 s`);
+  line('  peak memory (median)', `${median(rss).toFixed(0)} MiB  goal < 2048 MiB`);
+  line('  dams estimated', `${r0.damsEstimated} of ${scene.dams.length}`);
+  line('  cells visited by the floods', `${r0.cellsVisited.toLocaleString('en-US')}  (${(r0.cellsVisited / median(walls) / 1e6).toFixed(2)} M cells/s of run wall time)`);
+  line('  total storage', `${r0.storageM3.toFixed(0)} m³`);
+  const dWalls = drawRuns.map((r) => r.wallS);
+  line('estimate, 1,000 draws (median)', `${median(dWalls).toFixed(2)} s  (draws stage ${median(drawRuns.map((r) => r.drawsS)).toFixed(2)} s; peak ${median(drawRuns.map((r) => r.maxRssMiB)).toFixed(0)} MiB)`);
+  line('  ratio to deterministic', `${(median(dWalls) / median(walls)).toFixed(2)} ×  goal < 2 ×`);
+  const rlake = await rlakeSideBySide({ demPath: inputs.demPath, damsPath: inputs.damsPath, work: join(root, 'rlake'), count: 10 });
+  if (rlake) {
+    line('r.lake, 10 dams (flood only)', `${rlake.rlakeS.toFixed(2)} s`);
+    line('pondage, same 10 dams (fill only)', `${rlake.pondageS.toFixed(3)} s`);
+    line('time ratio r.lake / pondage', `${(rlake.rlakeS / rlake.pondageS).toFixed(1)} ×  (same levels; cell counts agree on ${rlake.agree} of ${rlake.count})`);
+    for (const m of rlake.mismatches) line(`  ${m.dam}: pondage / r.lake cells`, `${m.pondage} / ${m.rlake}`);
+  } else {
+    line('r.lake side by side', 'skipped (GRASS GIS not installed: apt-get install grass-core)');
+  }
+  return { runs, drawRuns, rlake };
 }
+const { runs, drawRuns, rlake } = only === 'influence' ? { runs: [], drawRuns: [], rlake: null } : await estimateSection();
 
 // The influence stage: fill, D8, accumulation, streams, HAND, watersheds and the influence zone over the whole DEM.
 const stages = [];
