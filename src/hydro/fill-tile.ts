@@ -7,13 +7,13 @@
  * reused from tile to tile.
  *
  * Inside the tile this is Barnes, Lehman & Mulla (2014) Algorithm 2 (a
- * priority queue plus a plain queue for cells at the current spill level),
- * with one more plain queue in the spirit of Zhou, Sun & Fu (2016): a cell
- * above the spill level whose unreached neighbours are all higher cannot be
- * affected by processing order, so it skips the priority queue. The
- * priority queue itself is the tile's cells radix-sorted by elevation and a
- * forward-only pointer (see `run`), which costs O(n) instead of a heap's
- * O(n log n) and was the larger part of the time.
+ * priority queue plus a plain queue for cells at the current spill level).
+ * The priority queue itself is the tile's cells radix-sorted by elevation
+ * and a forward-only pointer (see `run`), which costs O(n) instead of a
+ * heap's O(n log n) and was the larger part of the time. Queuing a cell is
+ * then a single state write, so a cell above the spill level always goes
+ * to that queue: testing its neighbours first to let it skip the queue (as
+ * Zhou, Sun & Fu 2016 do with a heap) cost more than it saved.
  */
 import { CellSorter } from './sort-cells.js';
 import { OUTLET_LABEL, type SpillGraph } from './spill-graph.js';
@@ -39,7 +39,6 @@ export class TileFlood {
   private readonly state: Uint8Array;
   private readonly lab: Int32Array;
   private readonly pit: Int32Array;
-  private readonly slope: Int32Array;
   private readonly sorted: Int32Array;
   private readonly sorter: CellSorter;
   /** Offsets of the eight neighbours in the current tile (NW, N, NE, W, E, SW, S, SE), and room for an edge cell's list. */
@@ -52,7 +51,6 @@ export class TileFlood {
     this.state = new Uint8Array(size);
     this.lab = new Int32Array(size);
     this.pit = new Int32Array(size);
-    this.slope = new Int32Array(size);
     this.sorted = new Int32Array(size);
     this.sorter = new CellSorter(size);
   }
@@ -73,7 +71,7 @@ export class TileFlood {
     graph: SpillGraph,
   ): number {
     const { r0, c0, rows, cols } = t;
-    const { lz, state, lab, pit, slope, sorted, around, edge } = this;
+    const { lz, state, lab, pit, sorted, around, edge } = this;
     const size = rows * cols;
     around.set([-cols - 1, -cols, -cols + 1, -1, 1, cols - 1, cols, cols + 1]);
     for (let lr = 0; lr < rows; lr++) {
@@ -125,8 +123,6 @@ export class TileFlood {
     let next = 0;
     let pitHead = 0;
     let pitTail = 0;
-    let slopeHead = 0;
-    let slopeTail = 0;
     for (;;) {
       let cell: number;
       if (pitHead < pitTail) {
@@ -134,12 +130,6 @@ export class TileFlood {
         if (pitHead === pitTail) {
           pitHead = 0;
           pitTail = 0;
-        }
-      } else if (slopeHead < slopeTail) {
-        cell = slope[slopeHead++] ?? 0;
-        if (slopeHead === slopeTail) {
-          slopeHead = 0;
-          slopeTail = 0;
         }
       } else {
         while (next < queued && state[sorted[next] ?? 0] !== QUEUED) next++;
@@ -178,8 +168,6 @@ export class TileFlood {
         if (zn <= level) {
           lz[nb] = level;
           pit[pitTail++] = nb;
-        } else if (openNeighboursHigher(lz, state, around, nb, zn)) {
-          slope[slopeTail++] = nb;
         } else {
           state[nb] = QUEUED;
         }
@@ -194,13 +182,4 @@ export class TileFlood {
     }
     return nextLabel;
   }
-}
-
-/** Whether every not-yet-reached neighbour of interior tile cell `cell` (offsets `around`) is higher than `zc`. */
-function openNeighboursHigher(lz: Float32Array, state: Uint8Array, around: Int32Array, cell: number, zc: number): boolean {
-  for (let k = 0; k < 8; k++) {
-    const i = cell + around[k]!;
-    if (state[i] === 0 && lz[i]! <= zc) return false;
-  }
-  return true;
 }
