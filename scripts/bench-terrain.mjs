@@ -27,6 +27,7 @@ process.stdout.write(
     terrainS: t.terrainS,
     watershedsS: t.watershedsS,
     influenceS: t.influenceS,
+    terrainStepsS: t.terrainStepsS,
     cells: run.outcome.width * run.outcome.height,
     watersheds: run.tally.rows.length,
     streamLinks: run.outcome.streams.length,

@@ -73,8 +73,22 @@ export function fillWithDirections(
   options: FillOptions = {},
   pool?: RasterPool,
 ): { fill: FillResult; flow: FlowDirections } {
+  const { fill, dir, flats } = fillMarkingFlats(grid, options, pool);
+  return { fill, flow: routeFlats(grid, fill.filledZ, dir, flats, pool) };
+}
+
+/**
+ * {@link fillWithDirections} up to the flats: the fill, and D8 directions
+ * with the flat cells marked and listed in row-major order, for d8.ts
+ * `routeFlats`.
+ */
+export function fillMarkingFlats(
+  grid: Pick<Grid, 'width' | 'height' | 'z' | 'cellWidthM' | 'cellHeightM'>,
+  options: FillOptions = {},
+  pool?: RasterPool,
+): { fill: FillResult; dir: Uint8Array; flats: Int32Array } {
   const { fill, dir, flats } = fillAndDirect(grid, grid, options, pool);
-  return { fill, flow: routeFlats(grid, fill.filledZ, dir!, flats!, pool) };
+  return { fill, dir: dir!, flats: flats! };
 }
 
 /** The fill, and with `geometry` the D8 pass with flat cells marked and listed (not routed yet). */

@@ -5,7 +5,8 @@
  */
 import type { Grid } from '../grid/grid.js';
 import { drainageRasters } from './drainage.js';
-import { fillWithDirections, type FillOptions } from './fill.js';
+import { routeFlats } from './d8.js';
+import { fillMarkingFlats, type FillOptions } from './fill.js';
 import type { HandResult } from './hand.js';
 import { flowRouting } from './order.js';
 import { RasterPool } from './raster-pool.js';
@@ -51,6 +52,8 @@ export interface Terrain {
   readonly valleyBottom: Uint8Array;
   /** Counts worth reporting: raised cells, routed flat cells, pits left. */
   readonly stats: { raisedCells: number; flatCells: number; pitCells: number };
+  /** Wall time of each part, seconds (for the bench): fill with D8, flat routing, order with contributing area and streams, links and lengths, HAND with watersheds and valley bottom. */
+  readonly timingsS: { fillS: number; flatsS: number; routingS: number; linksS: number; drainageS: number };
 }
 
 /** Runs the whole terrain step on `grid` (elevations in metres, NaN for NoData). */
@@ -60,17 +63,31 @@ export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrai
   // contributing area, donor counts and stream mask (flowRouting), links, drainage cells and link watersheds.
   const n = grid.width * grid.height;
   pool.prepare([8 * n, n, n, 4 * n, 4 * n]);
+  let t = performance.now();
+  const lap = (): number => {
+    const now = performance.now();
+    const s = (now - t) / 1000;
+    t = now;
+    return s;
+  };
   // Fill and D8 together: on several threads the fill's last pass and the D8 pass are split by rows.
-  const { fill, flow } = fillWithDirections(grid, options.fill, pool);
+  const marked = fillMarkingFlats(grid, options.fill, pool);
+  const { fill } = marked;
+  const fillS = lap();
+  const flow = routeFlats(grid, fill.filledZ, marked.dir, marked.flats, pool);
+  const flatsS = lap();
   // Order, contributing area and stream mask in one walk; links from the stream cells alone.
   const routing = flowRouting(grid, flow.dir, fill.filledZ, options.streamThresholdM2 ?? DEFAULT_STREAM_THRESHOLD_M2, pool);
   const { order, accumulationM2, stream } = routing;
+  const routingS = lap();
   const links = streamLinks(flow.dir, routing.streamCells, stream, grid.width, pool);
   const lengths = streamCellLengthsM(grid, flow.dir, routing.streamCells);
+  const linksS = lap();
   const handZ = options.handSurface === 'filled' ? fill.filledZ : grid.z;
   // HAND, link watersheds and valley bottom in one pass up the order.
   let lengthRaster: Float32Array | null = null;
   const drained = drainageRasters(handZ, flow.dir, order, stream, routing.streamCells, links.link, accumulationM2, grid.width, options.valleyBottom, pool);
+  const drainageS = lap();
   return {
     filledZ: fill.filledZ,
     dir: flow.dir,
@@ -89,5 +106,6 @@ export function analyseTerrain(grid: Grid, options: TerrainOptions = {}): Terrai
     },
     valleyBottom: drained.valleyBottom,
     stats: { raisedCells: fill.raisedCells, flatCells: flow.flatCells, pitCells: flow.pitCells },
+    timingsS: { fillS, flatsS, routingS, linksS, drainageS },
   };
 }

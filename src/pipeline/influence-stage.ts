@@ -32,7 +32,7 @@ import { xToCol, yToRow, type GeoTransform } from '../grid/transform.js';
 import { streamPolylines } from '../hydro/stream-lines.js';
 import type { StreamCellLengths } from '../hydro/stream-length.js';
 import { DEFAULT_STREAM_THRESHOLD_M2, type StreamLinks } from '../hydro/streams.js';
-import { analyseTerrain } from '../hydro/terrain.js';
+import { analyseTerrain, type Terrain } from '../hydro/terrain.js';
 import { VALLEY_BOTTOM_DEFAULTS, type ValleyBottomOptions } from '../hydro/valley-bottom.js';
 import { DEFAULT_RIPARIAN_DISTANCE_M, DEFAULT_RIPARIAN_RISE_M, influenceZoneOfCells, type PondCells } from '../influence/zone.js';
 import { buildRiparianTables, type RiparianTables } from '../influence/riparian-table.js';
@@ -122,8 +122,12 @@ export interface InfluenceOutcome {
   warnings: Warning[];
   /** Per-dam riparian area tables over the draws' limits (owner id = dam row + 1; influence/riparian-table.ts), or null without `reach`. */
   riparianTables: RiparianTables | null;
-  /** Wall time of each step, s (for the bench); riparianTableS is the part of influenceS that builds the tables. */
-  timings: { readS: number; terrainS: number; watershedsS: number; influenceS: number; riparianTableS?: number };
+  /**
+   * Wall time of each step, s (for the bench); riparianTableS is the part of
+   * influenceS that builds the tables, terrainStepsS the parts of terrainS
+   * (hydro/terrain.ts `timingsS`).
+   */
+  timings: { readS: number; terrainS: number; watershedsS: number; influenceS: number; riparianTableS?: number; terrainStepsS: Terrain['timingsS'] };
 }
 
 /** Inputs of the stage besides the estimate's result. */
@@ -155,6 +159,7 @@ export async function runInfluenceStage(inp: InfluenceStageInputs): Promise<Infl
   t = performance.now();
   let terrain: ReturnType<typeof analyseTerrain> | null = analyseTerrain(grid, { streamThresholdM2: params.streamThresholdM2, valleyBottom: params.valleyBottom });
   const terrainS = (performance.now() - t) / 1000;
+  const terrainStepsS = terrain.timingsS;
 
   t = performance.now();
   let unitOfLink: Int32Array | null = null;
@@ -229,7 +234,7 @@ export async function runInfluenceStage(inp: InfluenceStageInputs): Promise<Infl
     streams,
     warnings,
     riparianTables,
-    timings: { readS, terrainS, watershedsS, influenceS, ...(inp.reach ? { riparianTableS } : {}) },
+    timings: { readS, terrainS, watershedsS, influenceS, ...(inp.reach ? { riparianTableS } : {}), terrainStepsS },
   };
 }
 
