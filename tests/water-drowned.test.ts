@@ -11,6 +11,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Grid } from '../src/grid/grid.js';
 import { crsFromEpsg } from '../src/io/crs.js';
 import { writeGeoTiff } from '../src/io/geotiff-write.js';
+import { runTable } from '../src/cli/table.js';
 import { defaultParams, runEstimate } from '../src/pipeline/run.js';
 import type { Summary } from '../src/pipeline/summary.js';
 import { defaultWaterRunParams } from '../src/pipeline/water-stage.js';
@@ -138,6 +139,10 @@ describe('a dam whose crest stands in the water of the pond below it', () => {
     expect(u.bed_elev_m! + u.height_m!).toBeCloseTo(u.crest_elev_m!, 9);
     const mine = both.warnings.filter((w) => w.dam_id === 'upper').map((w) => w.code);
     expect(mine).toContain('crest-in-standing-water');
+    // The printed table says where its water went, not 'crest' with nothing behind it.
+    const row = runTable(both).split('\n').find((r) => r.startsWith('upper'))!;
+    expect(row).toContain('under lower');
+    expect(runTable(both)).toContain('under X: the crest stands under the pond of dam X');
     expect(mine).not.toContain('spills-around-crest');
     expect(u.warnings.some((w) => w.includes('water escapes'))).toBe(false);
   });

@@ -11,7 +11,7 @@ export function runTable(summary: Summary, options: { maxRows?: number } = {}): 
     d.status + (d.estimated && !d.in_totals ? '*' : ''),
     d.height_m === null ? '-' : d.height_m.toFixed(2),
     d.height_source ?? '-',
-    d.estimated ? (d.limited_by ?? '-') : 'skipped',
+    !d.estimated ? 'skipped' : d.drowned_by ? `under ${d.drowned_by}` : (d.limited_by ?? '-'),
     d.estimated ? fmt(d.in_totals ? d.area_m2 : d.standalone_area_m2, 0) : '-',
     d.estimated ? fmt(d.in_totals ? d.volume_m3 : d.standalone_volume_m3, 1) : '-',
     d.in_totals && (d.water_surface_area_m2 ?? 0) > 0 ? fmt(d.volume_below_surface_m3 ?? 0, 1) : '-',
@@ -43,6 +43,7 @@ export function runTable(summary: Summary, options: { maxRows?: number } = {}): 
     );
   }
   out.push('* not in the totals (proposed, or a candidate below --min-confidence): its own pond is shown.');
+  if (summary.dams.some((d) => d.drowned_by)) out.push('under X: the crest stands under the pond of dam X, whose water is counted there.');
   return out.join('\n') + '\n';
 }
 
