@@ -20,8 +20,9 @@
  *
  * Memory: plan on {@link BYTES_PER_ANALYSED_CELL} bytes per analysed cell at
  * the peak (the DEM, filled DEM, directions, flow order, contributing area,
- * stream links and lengths, HAND and its drainage cells, labels): the
- * bench's 25 million cells peaked at 1.43 GiB with the ponds' data; the
+ * stream mask and links, drainage cells, link watersheds, valley bottom,
+ * labels; the HAND and stream-length rasters are not built): the
+ * bench's 25 million cells peaked at 1.22 GiB with the ponds' data; the
  * terrain's rasters are released before the influence zone is computed.
  */
 import { totalmem } from 'node:os';
@@ -54,7 +55,7 @@ import { clipBox, unionBox, type CellBox } from './windows.js';
  */
 export const DEFAULT_MIN_WATERSHED_AREA_M2 = 1_000_000;
 
-/** Bytes per analysed DEM cell to plan for (see the file comment): the bench run's peak per cell (61 B, the process with the ponds' data), rounded up. */
+/** Bytes per analysed DEM cell to plan for (see the file comment): the bench run's peak per cell (53 B, the process with the ponds' data; 61 B before the terrain step reused its buffers), rounded up. */
 export const BYTES_PER_ANALYSED_CELL = 64;
 
 /** The stage's parameters (metres, m²). */
