@@ -35,14 +35,14 @@ import type { StreamCellLengths } from '../hydro/stream-length.js';
 import { DEFAULT_STREAM_THRESHOLD_M2, type StreamLinks } from '../hydro/streams.js';
 import { analyseTerrain, type Terrain } from '../hydro/terrain.js';
 import { VALLEY_BOTTOM_DEFAULTS, type ValleyBottomOptions } from '../hydro/valley-bottom.js';
-import { DEFAULT_RIPARIAN_DISTANCE_M, DEFAULT_RIPARIAN_RISE_M, influenceZoneOfCells, type PondCells } from '../influence/zone.js';
+import { DEFAULT_RIPARIAN_DISTANCE_M, DEFAULT_RIPARIAN_RISE_M, influenceZoneOfCells } from '../influence/zone.js';
 import { buildRiparianTables, type RiparianTables } from '../influence/riparian-table.js';
 import type { RiparianReach } from './influence-draws.js';
 import type { DamInput } from '../inventory.js';
 import type { AreaLayer } from '../io/area-layer.js';
 import { cellMetrics } from '../io/crs.js';
 import type { DemSource } from '../io/dem.js';
-import { pondWaterBox, type PondWater } from './pond-water.js';
+import { pondCellsOn, pondWaterBox, type PondWater } from './pond-water.js';
 import type { DamResult } from './result.js';
 import { derivedWatersheds, polygonValleyBottom, polygonWatersheds, type WatershedUnit } from './watersheds-stage.js';
 import { clipBox, unionBox, type CellBox } from './windows.js';
@@ -283,37 +283,6 @@ function analysisBox(inp: InfluenceStageInputs): CellBox {
   const pad = Math.ceil(Math.max(inp.params.riparianDistanceM, inp.reach?.distanceMaxM ?? 0) / cellM) + 2;
   const grown = clipBox({ col0: wet.col0 - pad, row0: wet.row0 - pad, col1: wet.col1 + pad, row1: wet.row1 + pad }, dem.width, dem.height);
   return grown ? unionBox(polygons, grown) : polygons;
-}
-
-/**
- * The wet cells on the analysis window `box` (full-DEM pixel space) as a
- * list: flat index in the window, water level, owner (dam row + 1); cells
- * off the window are left out. The list form of pond-water.ts `pondWaterOn`
- * (a cell listed twice keeps its last entry there as here), without two
- * rasters of the window's size.
- */
-function pondCellsOn(water: PondWater, box: CellBox): PondCells {
-  const w = box.col1 - box.col0;
-  const h = box.row1 - box.row0;
-  const cells = new Int32Array(water.cellCount);
-  const levelM = new Float32Array(water.cellCount);
-  const owner = new Int32Array(water.cellCount);
-  let count = 0;
-  for (const g of water.groups) {
-    const gw = g.box.col1 - g.box.col0;
-    for (let k = 0; k < g.cells.length; k++) {
-      const i = g.cells[k]!;
-      const gr = (i / gw) | 0;
-      const r = gr + g.box.row0 - box.row0;
-      const c = i - gr * gw + g.box.col0 - box.col0;
-      if (r < 0 || r >= h || c < 0 || c >= w) continue;
-      cells[count] = r * w + c;
-      levelM[count] = g.levelM[k]!;
-      owner[count] = g.dam[k]! + 1;
-      count++;
-    }
-  }
-  return { cells: cells.subarray(0, count), levelM: levelM.subarray(0, count), owner: owner.subarray(0, count) };
 }
 
 /** Refuses an analysis that cannot fit: flat indices are 32-bit, and the rasters need memory. */

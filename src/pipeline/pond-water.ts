@@ -9,6 +9,7 @@
  */
 import type { CombinedPonds } from '../ponds/combine.js';
 import type { CellBox } from './windows.js';
+import type { PondCells } from '../influence/zone.js';
 
 /** The wet cells of one window group. */
 export interface PondWaterGroup {
@@ -81,30 +82,31 @@ export function pondWaterBox(water: PondWater): CellBox | null {
 }
 
 /**
- * The water on an analysis window `box` (full-DEM pixel space): level per
- * cell (NaN where dry) and owner per cell (dam row + 1; 0 where dry). Wet
- * cells outside the box are counted in `outside`.
+ * The wet cells on the analysis window `box` (full-DEM pixel space) as a
+ * list: flat index in the window, water level, owner (dam row + 1); cells
+ * off the window are left out (the influence zone takes a cell listed
+ * twice at its last entry). A list, not rasters of the window's size.
  */
-export function pondWaterOn(water: PondWater, box: CellBox): { levelM: Float32Array; owner: Int32Array; outside: number } {
+export function pondCellsOn(water: PondWater, box: CellBox): PondCells {
   const w = box.col1 - box.col0;
   const h = box.row1 - box.row0;
-  const levelM = new Float32Array(w * h).fill(NaN);
-  const owner = new Int32Array(w * h);
-  let outside = 0;
+  const cells = new Int32Array(water.cellCount);
+  const levelM = new Float32Array(water.cellCount);
+  const owner = new Int32Array(water.cellCount);
+  let count = 0;
   for (const g of water.groups) {
     const gw = g.box.col1 - g.box.col0;
     for (let k = 0; k < g.cells.length; k++) {
       const i = g.cells[k]!;
-      const r = ((i / gw) | 0) + g.box.row0 - box.row0;
-      const c = (i % gw) + g.box.col0 - box.col0;
-      if (r < 0 || r >= h || c < 0 || c >= w) {
-        outside++;
-        continue;
-      }
-      const j = r * w + c;
-      levelM[j] = g.levelM[k]!;
-      owner[j] = g.dam[k]! + 1;
+      const gr = (i / gw) | 0;
+      const r = gr + g.box.row0 - box.row0;
+      const c = i - gr * gw + g.box.col0 - box.col0;
+      if (r < 0 || r >= h || c < 0 || c >= w) continue;
+      cells[count] = r * w + c;
+      levelM[count] = g.levelM[k]!;
+      owner[count] = g.dam[k]! + 1;
+      count++;
     }
   }
-  return { levelM, owner, outside };
+  return { cells: cells.subarray(0, count), levelM: levelM.subarray(0, count), owner: owner.subarray(0, count) };
 }
