@@ -9,13 +9,17 @@
  *   cell centres, nearest cell.
  * - a bed DEM (`--bed-dem`): a DEM from before the dams, from a drained year,
  *   or a surveyed bathymetry grid, in metres after its own vertical unit.
- *   On the DEM's grid it is read as is; on another grid of the same CRS it is
- *   interpolated bilinearly at the DEM's cell centres from the four bed cells
- *   around each (the nearest bed cell where one of the four is NoData).
+ *   On the DEM's grid it is read as is; on another grid it is interpolated
+ *   bilinearly at the DEM's cell centres from the four bed cells around each
+ *   (the nearest bed cell where one of the four is NoData).
  *
- * Both must be in the DEM's CRS: a raster in another CRS is refused with the
- * gdalwarp command that puts it on the DEM's grid (reprojecting a raster cell
- * by cell is GDAL's job and an interpolation choice pondage leaves to the user).
+ * A raster in another CRS is sampled the same way, each DEM cell centre
+ * carried into the raster's CRS (proj4, io/crs.ts makeTransform): the
+ * horizontal positions are converted, the elevations are not (the bed DEM
+ * must share the DEM's vertical datum; a datum-offset check on the pond's dry
+ * ground warns otherwise). Where the conversion would need a datum grid
+ * pondage does not ship, the raster is refused with the gdalwarp command that
+ * puts it on the DEM's grid.
  */
 import { readFile } from 'node:fs/promises';
 import { extname } from 'node:path';
@@ -62,7 +66,11 @@ export async function openWaterInputs(dem: DemSource, options: WaterInputOptions
       inputs.push({ role: 'bed-dem', path: options.bedDemPath, sha256: await sha256File(options.bedDemPath) });
       assumptions.push(
         `Bed DEM ${options.bedDemPath}: elevations in ${src.zUnit === 'metre' ? 'metres' : src.zUnit} (${src.zUnitSource}), ` +
-          (bed.aligned ? 'on the DEM\'s grid; ' : 'interpolated bilinearly to the DEM\'s cell centres; ') +
+          (bed.aligned
+            ? 'on the DEM\'s grid; '
+            : bed.toSource
+              ? `in ${crsLabel(src.crs)}, interpolated bilinearly at the DEM's cell centres carried into that CRS (positions converted, elevations not); `
+              : 'interpolated bilinearly to the DEM\'s cell centres; ') +
           'used as the bed under today\'s water where it has data. It must share the DEM\'s vertical datum.',
       );
     }
@@ -102,9 +110,11 @@ export async function openWaterInputs(dem: DemSource, options: WaterInputOptions
 const sameCrs = (a: Crs, b: Crs): boolean => (a.epsg !== null && b.epsg !== null ? a.epsg === b.epsg : a.proj4 === b.proj4);
 const crsLabel = (c: Crs): string => (c.epsg !== null ? `EPSG:${c.epsg}` : c.name);
 
-/** A raster of the DEM's CRS read on the DEM's grid: directly when aligned, else resampled. */
+/** A raster read on the DEM's grid: directly when aligned, else resampled at the DEM's cell centres (carried into the raster's CRS when it has another). */
 class RasterOnDem {
   readonly aligned: boolean;
+  /** DEM coordinates to the raster's CRS, or null when they share one. */
+  readonly toSource: ((x: number, y: number) => [number, number]) | null;
   private readonly colOffset: number;
   private readonly rowOffset: number;
 
@@ -115,12 +125,22 @@ class RasterOnDem {
     private readonly method: 'bilinear' | 'nearest',
   ) {
     const path = src.files[0] ?? flag;
+    this.toSource = null;
     if (!sameCrs(src.crs, dem.crs)) {
-      const d = dem.transform;
-      throw new InputError(
-        `${flag} file "${path}" is in ${crsLabel(src.crs)} but the DEM is in ${crsLabel(dem.crs)}; put it on the DEM's grid first: ` +
-          `gdalwarp -t_srs ${dem.crs.epsg !== null ? `EPSG:${dem.crs.epsg}` : '"<the DEM CRS>"'} -tr ${d.dx} ${-d.dy} -tap -r ${method} "${path}" on-dem-grid.tif`,
-      );
+      try {
+        this.toSource = makeTransform(dem.crs, src.crs);
+        this.toSource(dem.transform.x0, dem.transform.y0);
+      } catch (e) {
+        const d = dem.transform;
+        throw new InputError(
+          `${flag} file "${path}" is in ${crsLabel(src.crs)} and the DEM in ${crsLabel(dem.crs)}, and pondage cannot convert between them here (${(e as Error).message.split(';')[0]}); put it on the DEM's grid first: ` +
+            `gdalwarp -t_srs ${dem.crs.epsg !== null ? `EPSG:${dem.crs.epsg}` : '"<the DEM CRS>"'} -tr ${d.dx} ${-d.dy} -tap -r ${method} "${path}" on-dem-grid.tif`,
+        );
+      }
+      this.aligned = false;
+      this.colOffset = 0;
+      this.rowOffset = 0;
+      return;
     }
     const s = src.transform;
     const d = dem.transform;
@@ -149,6 +169,7 @@ class RasterOnDem {
       copyGrid(g, out, w, g.colOffset - c0, g.rowOffset - r0);
       return out;
     }
+    if (this.toSource) return this.readConverted(box, out);
     // Source cells covering the window's cell centres, one cell of margin.
     const d = windowTransform(this.dem.transform, box.col0, box.row0);
     const s = this.src.transform;
@@ -170,6 +191,50 @@ class RasterOnDem {
         const fx = xToCol(s, colToX(d, c + 0.5)) - 0.5 - g.colOffset;
         out[r * w + c] = this.method === 'nearest' ? nearestAt(gz, gw, g.height, fx, fy) : bilinearAt(gz, gw, g.height, fx, fy);
       }
+    }
+    return out;
+  }
+
+  /** `read` for a raster in another CRS: each window cell centre carried into it, then sampled. */
+  private async readConverted(box: CellBox, out: Float32Array): Promise<Float32Array> {
+    const w = box.col1 - box.col0;
+    const h = box.row1 - box.row0;
+    const d = windowTransform(this.dem.transform, box.col0, box.row0);
+    const s = this.src.transform;
+    const toSource = this.toSource!;
+    // Fractional source cell positions (centre-based) of every window cell centre.
+    const fxs = new Float64Array(w * h);
+    const fys = new Float64Array(w * h);
+    let minX = Infinity;
+    let maxX = -Infinity;
+    let minY = Infinity;
+    let maxY = -Infinity;
+    for (let r = 0; r < h; r++) {
+      const y = rowToY(d, r + 0.5);
+      for (let c = 0; c < w; c++) {
+        const [xs, ys] = toSource(colToX(d, c + 0.5), y);
+        const fx = xToCol(s, xs) - 0.5;
+        const fy = yToRow(s, ys) - 0.5;
+        fxs[r * w + c] = fx;
+        fys[r * w + c] = fy;
+        if (fx < minX) minX = fx;
+        if (fx > maxX) maxX = fx;
+        if (fy < minY) minY = fy;
+        if (fy > maxY) maxY = fy;
+      }
+    }
+    if (!(minX <= maxX && minY <= maxY)) return out;
+    const sc0 = Math.max(0, Math.floor(minX) - 1);
+    const sr0 = Math.max(0, Math.floor(minY) - 1);
+    const sc1 = Math.min(this.src.width, Math.ceil(maxX) + 2);
+    const sr1 = Math.min(this.src.height, Math.ceil(maxY) + 2);
+    if (sc1 <= sc0 || sr1 <= sr0) return out;
+    const g = await this.src.readWindow(sc0, sr0, sc1 - sc0, sr1 - sr0);
+    if (g.width === 0 || g.height === 0) return out;
+    for (let i = 0; i < w * h; i++) {
+      const fx = fxs[i]! - g.colOffset;
+      const fy = fys[i]! - g.rowOffset;
+      out[i] = this.method === 'nearest' ? nearestAt(g.z, g.width, g.height, fx, fy) : bilinearAt(g.z, g.width, g.height, fx, fy);
     }
     return out;
   }
@@ -242,7 +307,7 @@ async function openRasterMask(path: string, dem: DemSource): Promise<MaskSource>
   let nextLabel = 1;
   const bodies: { areaM2: number }[] = [];
   return {
-    describe: `raster, non-zero cells are water${raster.aligned ? '' : ', sampled at the DEM\'s cell centres (nearest cell)'}`,
+    describe: `raster, non-zero cells are water${raster.aligned ? '' : `, sampled at the DEM's cell centres (nearest cell${raster.toSource ? `, carried into ${crsLabel(src.crs)}` : ''})`}`,
     async labels(box: CellBox): Promise<Int32Array> {
       const v = await raster.read(box);
       const w = box.col1 - box.col0;
