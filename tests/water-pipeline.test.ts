@@ -11,9 +11,9 @@ import proj4 from 'proj4';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Grid } from '../src/grid/grid.js';
 import { crsFromEpsg } from '../src/io/crs.js';
-import { openDem } from '../src/io/dem.js';
+import { openDem, type DemSource } from '../src/io/dem.js';
 import { writeGeoTiff } from '../src/io/geotiff-write.js';
-import { openWaterInputs } from '../src/io/water-inputs.js';
+import { openWaterInputs, type WaterInputs } from '../src/io/water-inputs.js';
 import { defaultParams, runEstimate } from '../src/pipeline/run.js';
 import type { Summary } from '../src/pipeline/summary.js';
 import { defaultWaterRunParams } from '../src/pipeline/water-stage.js';
@@ -112,6 +112,23 @@ function sums(s: Summary): { volume: number; above: number; below: number; area:
   return { volume, above, below, area };
 }
 
+/** The bed read on a window of the DEM equals `plane` at every cell centre (within float32 storage of values near 5 m: about 5e-7 m). */
+async function expectPlaneOnWindow(water: WaterInputs, dem: DemSource, plane: (x: number, y: number) => number): Promise<void> {
+  const box = { col0: 5, row0: 10, col1: 60, row1: 200 };
+  const got = await water.readWindow(box);
+  let checked = 0;
+  for (let r = box.row0; r < box.row1; r++) {
+    for (let c = box.col0; c < box.col1; c++) {
+      const x = dem.transform.x0 + (c + 0.5) * dem.transform.dx;
+      const y = dem.transform.y0 + (r + 0.5) * dem.transform.dy;
+      const v = got.bedZ![(r - box.row0) * (box.col1 - box.col0) + (c - box.col0)]!;
+      expect(Math.abs(v - plane(x, y))).toBeLessThan(1e-4);
+      checked++;
+    }
+  }
+  expect(checked).toBe(55 * 190);
+}
+
 describe('a pond holding water, with a bed DEM', () => {
   it('with --bed-dem equal to the DEM before the pond, the estimate equals the estimate on that DEM', async () => {
     const before = await run('dry', join(dir, 'dry.tif'), [crest('main', 0, { height_m: 1 })]);
@@ -162,20 +179,7 @@ describe('a pond holding water, with a bed DEM', () => {
     const dem = await openDem([join(dir, 'wet.tif')]);
     const water = (await openWaterInputs(dem, { bedDemPath: join(dir, 'plane-utm13.tif') }))!;
     expect(water.assumptions[0]).toMatch(/in EPSG:32613, interpolated bilinearly at the DEM's cell centres carried into that CRS/);
-    const box = { col0: 5, row0: 10, col1: 60, row1: 200 };
-    const got = await water.readWindow(box);
-    let checked = 0;
-    for (let r = box.row0; r < box.row1; r++) {
-      for (let c = box.col0; c < box.col1; c++) {
-        const x = dem.transform.x0 + (c + 0.5) * dem.transform.dx;
-        const y = dem.transform.y0 + (r + 0.5) * dem.transform.dy;
-        const v = got.bedZ![(r - box.row0) * (box.col1 - box.col0) + (c - box.col0)]!;
-        // float32 storage of values near 5 m: about 5e-7 m.
-        expect(Math.abs(v - plane(x, y))).toBeLessThan(1e-4);
-        checked++;
-      }
-    }
-    expect(checked).toBe(55 * 190);
+    await expectPlaneOnWindow(water, dem, plane);
     await water.close();
     await dem.close();
   });
@@ -209,19 +213,7 @@ describe('a pond holding water, with a bed DEM', () => {
     await writeGeoTiff(join(dir, 'plane.tif'), { width, height, data: z, transform: t, crs: crsFromEpsg(EPSG), noData: -9999, zUnit: 'metre' });
     const dem = await openDem([join(dir, 'wet.tif')]);
     const water = (await openWaterInputs(dem, { bedDemPath: join(dir, 'plane.tif') }))!;
-    const box = { col0: 5, row0: 10, col1: 60, row1: 200 };
-    const got = await water.readWindow(box);
-    let checked = 0;
-    for (let r = box.row0; r < box.row1; r++) {
-      for (let c = box.col0; c < box.col1; c++) {
-        const x = dem.transform.x0 + (c + 0.5) * dem.transform.dx;
-        const y = dem.transform.y0 + (r + 0.5) * dem.transform.dy;
-        const v = got.bedZ![(r - box.row0) * (box.col1 - box.col0) + (c - box.col0)]!;
-        expect(Math.abs(v - plane(x, y))).toBeLessThan(1e-4);
-        checked++;
-      }
-    }
-    expect(checked).toBe(55 * 190);
+    await expectPlaneOnWindow(water, dem, plane);
     await water.close();
     await dem.close();
   });
