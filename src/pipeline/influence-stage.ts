@@ -44,7 +44,7 @@ import { cellMetrics } from '../io/crs.js';
 import type { DemSource } from '../io/dem.js';
 import { pondCellsOn, pondWaterBox, type PondWater } from './pond-water.js';
 import type { DamResult } from './result.js';
-import { derivedWatersheds, polygonValleyBottom, polygonWatersheds, type WatershedUnit } from './watersheds-stage.js';
+import { derivedWatersheds, featuresBox, polygonValleyBottom, polygonWatersheds, type WatershedUnit } from './watersheds-stage.js';
 import { clipBox, unionBox, type CellBox } from './windows.js';
 
 /**
@@ -249,25 +249,7 @@ function analysisBox(inp: InfluenceStageInputs): CellBox {
   const whole: CellBox = { col0: 0, row0: 0, col1: dem.width, row1: dem.height };
   if (!inp.watersheds) return whole;
   const t = dem.transform;
-  let c0 = Infinity;
-  let c1 = -Infinity;
-  let r0 = Infinity;
-  let r1 = -Infinity;
-  for (const f of inp.watersheds.features) {
-    for (const polygon of f.polygons) {
-      for (const ring of polygon) {
-        for (const p of ring) {
-          const c = xToCol(t, p[0]!);
-          const r = yToRow(t, p[1]!);
-          if (c < c0) c0 = c;
-          if (c > c1) c1 = c;
-          if (r < r0) r0 = r;
-          if (r > r1) r1 = r;
-        }
-      }
-    }
-  }
-  const polygons = Number.isFinite(c0 + c1 + r0 + r1) ? clipBox({ col0: Math.floor(c0), row0: Math.floor(r0), col1: Math.ceil(c1) + 1, row1: Math.ceil(r1) + 1 }, dem.width, dem.height) : null;
+  const polygons = featuresBox(inp.watersheds.features, t, dem.width, dem.height);
   if (!polygons) {
     throw new InputError(
       `watersheds file "${inp.watersheds.path}": its polygons lie outside the DEM; the polygons and the DEM do not overlap. ` +

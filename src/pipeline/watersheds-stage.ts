@@ -135,7 +135,7 @@ function overlapWarnings(grid: Pick<Grid, 'width' | 'height' | 'transform' | 'ce
   const { width, height, transform } = grid;
   for (let f = 1; f < features.length; f++) {
     const feature = features[f]!;
-    const box = featureBox(feature, transform, width, height);
+    const box = featuresBox([feature], transform, width, height);
     if (!box) continue;
     const w = box.col1 - box.col0;
     const h = box.row1 - box.row0;
@@ -167,21 +167,23 @@ function overlapWarnings(grid: Pick<Grid, 'width' | 'height' | 'transform' | 'ce
   return out;
 }
 
-/** A feature's bounding box in grid cells, clipped; null when it misses the grid. */
-function featureBox(feature: AreaFeature, t: Grid['transform'], width: number, height: number): CellBox | null {
+/** The bounding box of features' polygons in grid cells, clipped; null when it misses the grid. */
+export function featuresBox(features: readonly AreaFeature[], t: Grid['transform'], width: number, height: number): CellBox | null {
   let c0 = Infinity;
   let c1 = -Infinity;
   let r0 = Infinity;
   let r1 = -Infinity;
-  for (const polygon of feature.polygons) {
-    for (const ring of polygon) {
-      for (const p of ring) {
-        const c = xToCol(t, p[0]!);
-        const r = yToRow(t, p[1]!);
-        if (c < c0) c0 = c;
-        if (c > c1) c1 = c;
-        if (r < r0) r0 = r;
-        if (r > r1) r1 = r;
+  for (const feature of features) {
+    for (const polygon of feature.polygons) {
+      for (const ring of polygon) {
+        for (const p of ring) {
+          const c = xToCol(t, p[0]!);
+          const r = yToRow(t, p[1]!);
+          if (c < c0) c0 = c;
+          if (c > c1) c1 = c;
+          if (r < r0) r0 = r;
+          if (r > r1) r1 = r;
+        }
       }
     }
   }
