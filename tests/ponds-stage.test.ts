@@ -3,7 +3,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_POND_PARAMS } from '../src/ponds/params.js';
-import { pondAt, pondStats, stageStorage } from '../src/ponds/stage-storage.js';
+import { levelForVolumeM, pondAt, pondStats, stageStorage } from '../src/ponds/stage-storage.js';
 import { fillDam, makeDam, rectValley, thresholdPond, type ValleyFrame } from './helpers/synthetic.js';
 
 // Rectangular valley W = 10 m, floor slope S = 0.01, 0.5 m cells; dam 1.0 m.
@@ -49,6 +49,21 @@ describe('stageStorage', () => {
   it('a water level at the bed gives a single row', () => {
     const dry = { ...fill, waterLevelM: setup.bedElevM };
     expect(stageStorage(dry, setup.bedElevM, 0.1)).toEqual([[setup.bedElevM, 0, 0]]);
+  });
+});
+
+describe('levelForVolumeM', () => {
+  it('inverts the rectangular valley curve: h = √(2S·V/W) within 3 % from h = 0.5 m up, and the fill\'s own volume within 1e-6 m', () => {
+    // Analytic: V(h) = W·h²/(2S), so h(V) = √(2S·V/W) above the bed.
+    for (const h of [0.5, 0.7, 0.9]) {
+      const volume = (W * h * h) / (2 * S);
+      const level = levelForVolumeM(fill, volume);
+      expect(Math.abs((level - setup.bedElevM) / h - 1)).toBeLessThan(0.03);
+      // Its own inverse: the fill at that level holds the volume asked for (bisection to 1e-6 m).
+      const held = pondAt(fill, level).volumeM3;
+      expect(Math.abs(held - volume)).toBeLessThan(1e-6 * pondAt(fill, level).areaM2 + 1e-9);
+    }
+    expect(levelForVolumeM(fill, 0)).toBe(fill.joinM[0]);
   });
 });
 

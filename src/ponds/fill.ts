@@ -123,34 +123,13 @@ export interface FillOptions {
 
 /** Floods behind one crest (see the file comment). */
 export function fillBehindCrest(grid: Grid, setup: CrestSetup, options: FillOptions = {}, scratch?: FillScratch): PondFill {
-  const { width, height, z, cellAreaM2 } = grid;
+  const { width, z, cellAreaM2 } = grid;
   const crestElevM = setup.crestElevM;
   if (!setup.holdsWater) return emptyFill(setup);
-  const s = scratch !== undefined && scratch.cellCount >= width * height ? scratch : createFillScratch(width * height);
   const maxLevelM = Math.max(options.maxLevelM ?? crestElevM, crestElevM);
-  const box = options.reachBox;
-  const col0 = Math.max(0, box?.col0 ?? 0);
-  const row0 = Math.max(0, box?.row0 ?? 0);
-  const lastCol = Math.min(width, box?.col1 ?? width) - 1;
-  const lastRow = Math.min(height, box?.row1 ?? height) - 1;
-
-  const stamp = nextStamp(s);
+  const { scratch: s, stamp, band, col0, row0, lastCol, lastRow } = startFlood(grid, setup, options.reachBox, options.wallCells, scratch);
   const mark = s.mark;
-  const band = -stamp;
-  for (let k = 0; k < setup.downstreamCells.length; k++) mark[setup.downstreamCells[k]!] = band;
-  for (let k = 0; k < setup.crestCells.length; k++) mark[setup.crestCells[k]!] = stamp;
-  const walls = options.wallCells;
-  if (walls) for (let k = 0; k < walls.length; k++) mark[walls[k]!] = stamp;
   const heap = s.heap;
-  heap.clear();
-  for (let k = 0; k < setup.seedCells.length; k++) {
-    const i = setup.seedCells[k]!;
-    const col = i % width;
-    const row = (i - col) / width;
-    if (col < col0 || col > lastCol || row < row0 || row > lastRow || mark[i] === stamp) continue;
-    mark[i] = stamp;
-    heap.push(i, z[i]!);
-  }
   if (heap.size === 0) throw new Error(`fill of dam ${setup.damId}: the reach box holds none of its seed cells`);
 
   const offsets = new Int32Array([-width - 1, -width, -width + 1, -1, 1, width - 1, width, width + 1]);
@@ -258,6 +237,51 @@ export function fillBehindCrest(grid: Grid, setup: CrestSetup, options: FillOpti
     crestElevM,
     visitedCount: popped,
   };
+}
+
+/** A flood behind a crest, started: its scratch, stamp and box (see startFlood). */
+export interface FloodStart {
+  scratch: FillScratch;
+  /** mark[i] = stamp for a queued, crest or wall cell; = band (−stamp) for an unqueued spill-band cell. */
+  stamp: number;
+  band: number;
+  /** The box's cells: [col0, lastCol] × [row0, lastRow]. */
+  col0: number;
+  row0: number;
+  lastCol: number;
+  lastRow: number;
+}
+
+/**
+ * Starts a flood behind `setup`'s crest: marks the spill band, the crest
+ * and `wallCells` (walls) with a fresh stamp of the scratch (`scratch` when
+ * it covers the grid, else a new one), and queues the seed cells inside the
+ * reach box at their elevation on the scratch's heap.
+ */
+export function startFlood(grid: Grid, setup: CrestSetup, reachBox: ReachBox | undefined, wallCells: Int32Array | undefined, scratch: FillScratch | undefined): FloodStart {
+  const { width, height, z } = grid;
+  const s = scratch !== undefined && scratch.cellCount >= width * height ? scratch : createFillScratch(width * height);
+  const col0 = Math.max(0, reachBox?.col0 ?? 0);
+  const row0 = Math.max(0, reachBox?.row0 ?? 0);
+  const lastCol = Math.min(width, reachBox?.col1 ?? width) - 1;
+  const lastRow = Math.min(height, reachBox?.row1 ?? height) - 1;
+  const stamp = nextStamp(s);
+  const mark = s.mark;
+  const band = -stamp;
+  for (let k = 0; k < setup.downstreamCells.length; k++) mark[setup.downstreamCells[k]!] = band;
+  for (let k = 0; k < setup.crestCells.length; k++) mark[setup.crestCells[k]!] = stamp;
+  if (wallCells) for (let k = 0; k < wallCells.length; k++) mark[wallCells[k]!] = stamp;
+  const heap = s.heap;
+  heap.clear();
+  for (let k = 0; k < setup.seedCells.length; k++) {
+    const i = setup.seedCells[k]!;
+    const col = i % width;
+    const row = (i - col) / width;
+    if (col < col0 || col > lastCol || row < row0 || row > lastRow || mark[i] === stamp) continue;
+    mark[i] = stamp;
+    heap.push(i, z[i]!);
+  }
+  return { scratch: s, stamp, band, col0, row0, lastCol, lastRow };
 }
 
 /** The fill of a dam that holds no water: empty, water level at the bed. */

@@ -65,6 +65,30 @@ export function pondAtExtended(fill: PondFill, levelM: number): PondSize {
 }
 
 /**
+ * The level (m) at which the fill holds `volumeM3` (pondAtExtended's volume,
+ * which never decreases with the level), by bisection to 1e-6 m; the
+ * lowest join level for a volume of 0 or less.
+ */
+export function levelForVolumeM(fill: PondFill, volumeM3: number): number {
+  if (fill.order.length === 0) return fill.waterLevelM;
+  let lo = fill.joinM[0]!;
+  if (!(volumeM3 > 0)) return lo;
+  let step = 0.5;
+  let hi = Math.max(lo, fill.waterLevelM) + step;
+  while (pondAtExtended(fill, hi).volumeM3 < volumeM3 && step < 1e4) {
+    lo = hi;
+    step *= 2;
+    hi += step;
+  }
+  while (hi - lo > 1e-6) {
+    const mid = 0.5 * (lo + hi);
+    if (pondAtExtended(fill, mid).volumeM3 < volumeM3) lo = mid;
+    else hi = mid;
+  }
+  return 0.5 * (lo + hi);
+}
+
+/**
  * Stage–area–storage rows [level_m, area_m2, volume_m3] from the bed to the
  * fill's water level every `stepM` metres (the params default is 0.1 m);
  * the last row is exactly at the water level. Levels are bed + k·step, not

@@ -326,6 +326,23 @@ export function supportCovarianceBlock(a: ErrorSupport, b: ErrorSupport, sillM2:
   return out;
 }
 
+/**
+ * Covariances (m²) of the error at a point (full-DEM cell position, at the
+ * support's cell size) with the support's jointly drawn errors, written to
+ * `out` (supportSize(s)): [reference, pond mean, passes...]. For a dry pond
+ * the pond's mean error is its reference error.
+ */
+export function pointSupportCovariances(s: ErrorSupport, col: number, row: number, sillM2: number, rangeM: number, out: Float64Array): void {
+  out[0] = sphericalCovariance(distM(s, col, row, s, s.refCol, s.refRow), sillM2, rangeM);
+  out[1] = s.areaM2 > 0 ? pointToPond(s, col, row, s, sillM2, rangeM) : out[0]!;
+  for (let j = 0; j < s.pointCol.length; j++) out[2 + j] = sphericalCovariance(distM(s, col, row, s, s.pointCol[j]!, s.pointRow[j]!), sillM2, rangeM);
+}
+
+/** Covariance (m²) of the error at two points (full-DEM cell positions at the support's cell size). */
+export function pointCovariance(s: ErrorSupport, colA: number, rowA: number, colB: number, rowB: number, sillM2: number, rangeM: number): number {
+  return sphericalCovariance(distM(s, colA, rowA, s, colB, rowB), sillM2, rangeM);
+}
+
 /** First block of `q` whose column is at least `col` (blocks are sorted by column). */
 function firstBlockFrom(q: ErrorSupport, col: number): number {
   let lo = 0;
