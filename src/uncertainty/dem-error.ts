@@ -48,19 +48,25 @@
  * passes' effective error likewise a maximum. The fill with those passes
  * closed answers for levels above the DEM's escape; above the last one
  * found, the pond deepens over its area (stage-storage.ts pondAtExtended).
+ * Along a way out the error can also raise or lower other cells than its
+ * pass, so that the way out's highest point moves: where the ground round
+ * the ways out (the rim) is kept, which is the rule (escape-rim.ts), the
+ * draws flood the rim again on the true ground instead and take the pond's
+ * volume from it; the passes' model above stays for a pond whose rim was
+ * too large to keep.
  *
  * Approximations, each tested against full re-flooding of perturbed DEMs
  * (tests/uncertainty-dem.test.ts): the pond whose mean error is taken is the
  * deterministic one; the smearing is the expected one, not drawn; the
  * upstream side, DEM visibility and crest cells are those of the DEM as it
- * is; and along one way out only its pass moves, while the error could also
- * raise another cell of it above the pass. Measured on the reference
- * valley (σ = 0.1 m, range 20 m): ponds held by their crest within 1 % of
- * re-flooding at p05, p50 and p95; ponds spilling round short crests within
- * 14 % (their bands span a factor of 4 to 5, which a fixed escape level
- * would have missed entirely). Ponds whose escape is the DEM's edge are the
- * least well served: along an uphill channel to the edge the error raises
- * the way out more than its pass shows.
+ * is. Measured on the reference valley (σ = 0.1 m, range 20 m): ponds held
+ * by their crest within 1 % of re-flooding at p05, p50 and p95. Ponds
+ * spilling round short crests, whose bands span a factor of 4 to 5, get
+ * re-flooding's pond from their rim given the same field (within 0.1 %),
+ * and the engine's own draws of the rim's error land within re-flooding's
+ * percentile intervals; with the passes' model alone they were within 14 %
+ * (along an uphill channel to the DEM's edge the error raises the way out
+ * more than its pass shows).
  */
 import { normal, createRng, deriveSeed } from './random.js';
 import { alternativeCovariance, supportCovarianceBlock, supportGapM, supportSize, type ErrorSupport } from './covariance.js';
@@ -89,6 +95,8 @@ export interface DemErrorDraws {
   largestComponent: number;
   /** Negative pivots met in the Cholesky factorisation, set to zero (a positive semi-definite matrix). */
   clippedPivots: number;
+  /** For the dams asked for (keepJoint): their jointly drawn errors [e_ref, ē, passes...] per draw, draw-major (k·size + r), m; null for the others. */
+  jointM: (Float64Array | null)[];
 }
 
 /**
@@ -107,9 +115,12 @@ export function drawDemErrors(args: {
   seed: number;
   sigmaM: number;
   rangeM: number;
+  /** Dams whose jointly drawn errors are kept (escape-rim.ts floods their rims with them). Default none. */
+  keepJoint?: readonly boolean[];
 }): DemErrorDraws {
   const { supports, ids, draws, seed, sigmaM, rangeM } = args;
   const n = supports.length;
+  const jointM: (Float64Array | null)[] = supports.map((sup, d) => (sup && args.keepJoint?.[d] && sigmaM > 0 ? new Float64Array(draws * supportSize(sup)) : null));
   const refErrorM = new Float64Array(n * draws);
   const meanErrorM = new Float64Array(n * draws);
   const passErrorM = new Float64Array(n * draws);
@@ -118,7 +129,7 @@ export function drawDemErrors(args: {
   let components = 0;
   let largest = 0;
   let clipped = 0;
-  if (!(sill > 0)) return { refErrorM, meanErrorM, passErrorM, withinSdM, components, largestComponent: largest, clippedPivots: clipped };
+  if (!(sill > 0)) return { refErrorM, meanErrorM, passErrorM, withinSdM, components, largestComponent: largest, clippedPivots: clipped, jointM };
 
   const members = connectedWithin(supports, rangeM);
   for (const comp of members) {
@@ -169,6 +180,11 @@ export function drawDemErrors(args: {
         refErrorM[d * draws + k] = e[o]!;
         meanErrorM[d * draws + k] = e[o + 1]!;
         passErrorM[d * draws + k] = passError(sup, e, o);
+        const joint = jointM[d];
+        if (joint) {
+          const size = start[p + 1]! - o;
+          for (let r = 0; r < size; r++) joint[k * size + r] = e[o + r]!;
+        }
       }
     }
   }
@@ -191,7 +207,7 @@ export function drawDemErrors(args: {
       refErrorM[d * draws + k] = referenceError(sup, eRef, alt);
     }
   });
-  return { refErrorM, meanErrorM, passErrorM, withinSdM, components, largestComponent: largest, clippedPivots: clipped };
+  return { refErrorM, meanErrorM, passErrorM, withinSdM, components, largestComponent: largest, clippedPivots: clipped, jointM };
 }
 
 /**

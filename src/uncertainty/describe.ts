@@ -31,6 +31,9 @@ export interface UncertaintySection {
     dams_in_overlap_groups: number;
     dem_error_groups: number;
     largest_dem_error_group: number;
+    /** Ponds escaping below their crest whose rim is flooded again per draw, and those whose rim was too large to keep (the passes' model). */
+    escape_rims_flooded: number;
+    escape_rims_not_kept: number;
   };
   /** Per-draw figures kept in the run folder (format: io/draws-csv.ts). */
   draws_file: string;
@@ -127,7 +130,7 @@ export function uncertaintyAssumptions(u: UncertaintyParams): string[] {
 export const APPROXIMATIONS: readonly string[] = [
   'Each dam is flooded once, to the highest level a draw can reach (4.5 standard deviations above the crest); every draw reads its pond from that fill by binary search.',
   "DEM error enters as a shift of the pond's level by its area-mean error minus the error at the cell its crest is measured from (first order in the error's variation within the pond); that cell is the lowest on the true ground of the cells nearly as low as it; the pond whose mean is taken is the deterministic one.",
-  "A pond whose water escapes below its crest escapes at the lowest, on the true ground, of its few lowest ways out, each moved by its pass's error; along a way out only the pass moves (against re-flooding perturbed DEMs: within 1 % for ponds held by their crest, within 14 % for ponds spilling round short crests).",
+  "A pond whose water escapes below its crest (round it, off the reach box, into NoData) has the ground round its ways out flooded again in every draw on the true ground, with that ground's error kriged from the dam's drawn errors plus its exact conditional variation near the passes (against re-flooding perturbed DEMs: within 1 % for ponds held by their crest; for ponds spilling round short crests, re-flooding's pond on the same field); where that ground exceeds 250,000 cells the pond escapes at the lowest of its few lowest ways out, each moved by its pass's error (within 14 %).",
   'Crests built from dam points are built once, for the deterministic height; higher draws may spill round their ends.',
   'Ponds that can share cells in some draw (found once from the fills) are combined per draw into one water surface; all other ponds are summed as they are.',
 ];
@@ -150,6 +153,8 @@ export function uncertaintySection(u: UncertaintyParams, outcome: DrawOutcome, s
       dams_in_overlap_groups: mc.clusteredDams,
       dem_error_groups: mc.demGroups,
       largest_dem_error_group: mc.largestDemGroup,
+      escape_rims_flooded: mc.escapeRims,
+      escape_rims_not_kept: mc.escapeRimsNotKept,
     },
     draws_file: DRAWS_FILE,
   };

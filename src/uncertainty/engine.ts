@@ -26,10 +26,11 @@
  * reproduces the deterministic figures bit for bit.
  */
 import type { DamStatus } from '../inventory.js';
-import { pondAtExtended } from '../ponds/stage-storage.js';
+import { levelForVolumeM, pondAtExtended } from '../ponds/stage-storage.js';
 import { combineCascade, createCascadeDraw, createCascadeScratch, type CascadeDraw } from './cascade.js';
 import { bandOf, percentileStandardError, tooFewDraws, type Bands } from './bands.js';
 import { HERMITE_5, drawDemErrors, drawnLevelM } from './dem-error.js';
+import { createRimWork, drawRimErrors, rimPondVolumeM3 } from './escape-rim.js';
 import type { DrawInputs, DamDrawInput, OverlapCluster } from './prepare.js';
 import type { UncertaintyParams } from './params.js';
 import { drawMissing } from './recall.js';
@@ -117,6 +118,9 @@ export interface DrawOutcome {
     demGroups: number;
     largestDemGroup: number;
     clippedPivots: number;
+    /** Ponds escaping below their crest whose rim the draws flood again, and those whose rim was not kept (escape-rim.ts). */
+    escapeRims: number;
+    escapeRimsNotKept: number;
   };
 }
 
@@ -148,6 +152,11 @@ export function runDraws(args: {
     seed,
     sigmaM: u.demError ? u.demRmseM : 0,
     rangeM: u.demErrorRangeM,
+    keepJoint: inputs.dams.map((inp) => Boolean(inp?.rim)),
+  });
+  // A dam whose rim is kept has the error's variation within its pond in its drawn volume already (escape-rim.ts).
+  dem.jointM.forEach((joint, d) => {
+    if (joint) dem.withinSdM[d] = 0;
   });
 
   // Heights, levels and inclusion.
@@ -162,11 +171,24 @@ export function runDraws(args: {
     const base = d * N;
     drawHeights(inp, det, u, sigmaLn, args.defaultHeightM, args.maxHeightM, heights.subarray(base, base + N));
     const floor = levelFloor(terms, d, inp.waterLevelM);
-    // Water that escapes below the crest does so at the lowest of its ways out, each moving with its pass's error.
+    // Water that escapes below the crest does so at the lowest of its ways out, each moving with its pass's
+    // error; where the rim round the ways out was kept, it is flooded again on the draw's true ground.
     const escapeM = inp.escapeLevelM;
+    const rim = inp.rim ?? null;
+    const joint = dem.jointM[d] ?? null;
+    const rimWork = rim && joint ? createRimWork(rim) : null;
+    const rimRng = rimWork ? createRng(deriveSeed(seed, 'dem-error-rim', det.id)) : null;
     for (let k = 0; k < N; k++) {
       const crest = inp.crestElevM + (heights[base + k]! - inp.heightM);
-      const level = drawnLevelM(crest, escapeM, dem.refErrorM[base + k]!, dem.meanErrorM[base + k]!, dem.passErrorM[base + k]!);
+      let level: number;
+      if (rim && joint && rimWork && rimRng) {
+        // The pond on the rim's true ground, as the level at which the DEM's fill holds as much (no smearing: it is in the volume).
+        for (let a = 0; a < rimWork.normals.length; a++) rimWork.normals[a] = normal(rimRng);
+        drawRimErrors(rim, joint, k * rim.m, rimWork);
+        level = levelForVolumeM(inp.fill, rimPondVolumeM3(rim, crest, dem.refErrorM[base + k]!, dem.meanErrorM[base + k]!, rimWork));
+      } else {
+        level = drawnLevelM(crest, escapeM, dem.refErrorM[base + k]!, dem.meanErrorM[base + k]!, dem.passErrorM[base + k]!);
+      }
       levels[base + k] = level < floor ? floor : level;
     }
     drawInclusion(det, u, seed, included.subarray(base, base + N));
@@ -360,6 +382,8 @@ export function runDraws(args: {
       demGroups: dem.components,
       largestDemGroup: dem.largestComponent,
       clippedPivots: dem.clippedPivots,
+      escapeRims: dem.jointM.filter((j) => j !== null).length,
+      escapeRimsNotKept: inputs.dams.filter((inp) => inp?.rim === null).length,
     },
   };
 }

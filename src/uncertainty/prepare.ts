@@ -15,12 +15,14 @@
  * downstream pond's backwater reaches into the upstream one).
  */
 import type { Grid } from '../grid/grid.js';
+import { indexOfSorted } from '../grid/sorted-search.js';
 import type { DamInput } from '../inventory.js';
 import type { CrestSetup, HeightSource } from '../ponds/crest.js';
 import { fillBehindCrest, type FillScratch, type PondFill, type ReachBox } from '../ponds/fill.js';
 import type { PondParams } from '../ponds/params.js';
 import { floodedCount } from '../ponds/stage-storage.js';
 import { buildSupport, sphericalSemivariogram, type ErrorSupport } from './covariance.js';
+import { buildEscapeRim, type EscapeRim } from './escape-rim.js';
 import { FLOOD_TOP_SIGMAS, type UncertaintyParams } from './params.js';
 
 /** One estimated dam as the draws see it. */
@@ -47,6 +49,8 @@ export interface DamDrawInput {
   escapeLevelM: number;
   /** Support of the DEM error, or null when that source is off. */
   support: ErrorSupport | null;
+  /** For a pond escaping below its crest with the DEM error on: the ground round its ways out, flooded again in every draw (escape-rim.ts); null when it could not be kept, absent otherwise. */
+  rim?: EscapeRim | null;
   /** Lowest ground elevation among fill.order[0..k], m. */
   prefixMinZ: Float32Array;
   /** Index into DrawInputs.clusters, or -1 when the pond overlaps no other in any draw. */
@@ -220,6 +224,7 @@ function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boole
     prefixMinZ[k] = low;
   }
   let support: ErrorSupport | null = null;
+  let rim: EscapeRim | null | undefined;
   if (demOn && setup.holdsWater) {
     // The deterministic pond's cells (the fill with ways out closed starts with the same cells).
     let count = floodedCount(fill, m.fill!.waterLevelM);
@@ -241,6 +246,9 @@ function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boole
       passCells: routes?.passCells ?? (fill.escapeKind !== null ? Int32Array.of(fill.escapePassCell) : undefined),
       passDeltaM: routes?.passDeltaM ?? (fill.escapeKind !== null ? Float64Array.of(0) : undefined),
     });
+    if (routes) {
+      rim = buildEscapeRim({ grid, setup, fill: m.fill!, closed: routes.fill, support, floodTopM, reachBox: m.reachBox, sigmaM: u.demRmseM, rangeM: u.demErrorRangeM, scratch });
+    }
   }
   return {
     index: m.index,
@@ -253,6 +261,7 @@ function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boole
     waterLevelM: m.fill!.waterLevelM,
     escapeLevelM,
     support,
+    ...(rim !== undefined ? { rim } : {}),
     prefixMinZ,
     cluster: -1,
     shares: null,
@@ -489,17 +498,6 @@ function sortedList(
   return out;
 }
 
-/** Position of `value` in ascending `sorted`, or −1. */
-function indexOfSorted(sorted: Int32Array, value: number): number {
-  let lo = 0;
-  let hi = sorted.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >>> 1;
-    if (sorted[mid]! < value) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo < sorted.length && sorted[lo] === value ? lo : -1;
-}
 
 /** Most alternatives to a dam's reference cell drawn with it. */
 export const MAX_REFERENCE_ALTERNATIVES = 8;
