@@ -55,13 +55,26 @@ export function pondAt(fill: PondFill, levelM: number): PondSize {
  * as in pondAt.
  */
 export function pondAtExtended(fill: PondFill, levelM: number): PondSize {
-  if (fill.escapeKind === null || !(levelM > fill.topLevelM)) return pondAt(fill, levelM);
-  const top = fill.topLevelM;
-  const n = floodedCount(fill, top);
-  if (n === 0) return { cellCount: 0, areaM2: 0, volumeM3: 0 };
+  return pondAtExtendedInto(fill, levelM, { cellCount: 0, areaM2: 0, volumeM3: 0 });
+}
+
+/** pondAtExtended written into `out` (returned), for loops over many draws. */
+export function pondAtExtendedInto(fill: PondFill, levelM: number, out: PondSize): PondSize {
+  const extended = fill.escapeKind !== null && levelM > fill.topLevelM;
+  const h = extended ? fill.topLevelM : Math.min(levelM, fill.topLevelM);
+  const n = floodedCount(fill, h);
+  if (n === 0) {
+    out.cellCount = 0;
+    out.areaM2 = 0;
+    out.volumeM3 = 0;
+    return out;
+  }
   const areaM2 = fill.cumAreaM2[n - 1]!;
-  const volumeM3 = (levelM - fill.zRefM) * areaM2 - fill.cumAreaZ[n - 1]!;
-  return { cellCount: n, areaM2, volumeM3: volumeM3 > 0 ? volumeM3 : 0 };
+  const volumeM3 = ((extended ? levelM : h) - fill.zRefM) * areaM2 - fill.cumAreaZ[n - 1]!;
+  out.cellCount = n;
+  out.areaM2 = areaM2;
+  out.volumeM3 = volumeM3 > 0 ? volumeM3 : 0;
+  return out;
 }
 
 /**

@@ -26,7 +26,7 @@
  * reproduces the deterministic figures bit for bit.
  */
 import type { DamStatus } from '../inventory.js';
-import { levelForVolumeM, pondAtExtended } from '../ponds/stage-storage.js';
+import { levelForVolumeM, pondAtExtendedInto, type PondSize } from '../ponds/stage-storage.js';
 import { combineCascade, createCascadeDraw, createCascadeScratch, type CascadeDraw } from './cascade.js';
 import { bandOf, percentileStandardError, tooFewDraws, type Bands } from './bands.js';
 import { HERMITE_5, drawDemErrors, drawnLevelM } from './dem-error.js';
@@ -245,6 +245,10 @@ export function runDraws(args: {
     standaloneVolume: new Float64Array(N),
   };
   let floodTopHits = 0;
+  // Reused pond sizes (no allocation per dam and draw).
+  const plainSize: PondSize = { cellCount: 0, areaM2: 0, volumeM3: 0 };
+  const ownSize: PondSize = { cellCount: 0, areaM2: 0, volumeM3: 0 };
+  const nodeSize: PondSize = { cellCount: 0, areaM2: 0, volumeM3: 0 };
   for (let d = 0; d < D; d++) {
     const inp = inputs.dams[d];
     const det = dams[d]!;
@@ -257,10 +261,10 @@ export function runDraws(args: {
       // Above an escape the pond deepens over its area at the pass (pondAtExtended); above the flood's level limit it is held there.
       const h = fill.escapeKind !== null ? level : Math.min(level, fill.topLevelM);
       if (level > fill.topLevelM && fill.escapeKind === null && inp.holdsWater) floodTopHits++;
-      const plain = pondAtExtended(fill, level);
+      const plain = pondAtExtendedInto(fill, level, plainSize);
       const sw = dem.withinSdM[d]!;
       // The error's variation within the pond: the expected pond over the smeared level (dem-error.ts).
-      const own = sw > 0 ? smearedPond(fill, level, sw) : plain;
+      const own = sw > 0 ? smearedPondInto(fill, level, sw, ownSize, nodeSize) : plain;
       const extra = terms.length > 0 ? termSum(d, k) : 0;
       fig.standaloneArea[k] = own.areaM2;
       fig.standaloneVolume[k] = own.volumeM3 + extra;
@@ -409,17 +413,25 @@ function levelFloor(terms: readonly DamVolumeTerm[], d: number, deterministicLev
 }
 
 /** The pond's expected area and volume when its level is smeared by N(0, s²) (five-point Gauss–Hermite). */
-export function smearedPond(fill: DamDrawInput['fill'], levelM: number, s: number): { cellCount: number; areaM2: number; volumeM3: number } {
+export function smearedPond(fill: DamDrawInput['fill'], levelM: number, s: number): PondSize {
+  return smearedPondInto(fill, levelM, s, { cellCount: 0, areaM2: 0, volumeM3: 0 }, { cellCount: 0, areaM2: 0, volumeM3: 0 });
+}
+
+/** smearedPond written into `out` (returned); `node` is scratch for one Gauss–Hermite node. */
+export function smearedPondInto(fill: DamDrawInput['fill'], levelM: number, s: number, out: PondSize, node: PondSize): PondSize {
   let area = 0;
   let volume = 0;
   let cells = 0;
   for (let j = 0; j < HERMITE_5.x.length; j++) {
-    const p = pondAtExtended(fill, levelM + Math.SQRT2 * s * HERMITE_5.x[j]!);
+    const p = pondAtExtendedInto(fill, levelM + Math.SQRT2 * s * HERMITE_5.x[j]!, node);
     area += HERMITE_5.w[j]! * p.areaM2;
     volume += HERMITE_5.w[j]! * p.volumeM3;
     if (j === 0) cells = p.cellCount;
   }
-  return { cellCount: cells, areaM2: area, volumeM3: volume };
+  out.cellCount = cells;
+  out.areaM2 = area;
+  out.volumeM3 = volume;
+  return out;
 }
 
 /** Crest heights of one dam in every draw, m. */

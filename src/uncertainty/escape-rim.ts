@@ -370,9 +370,13 @@ export function buildEscapeRim(args: {
   // Cells out of reach of every drawn error (all kriging weights zero, no variation of their own) keep the DEM's
   // ground in a draw: from each, the lowest way out through such cells alone (a flood back from the ways out).
   const farExitM = new Float64Array(n).fill(Infinity);
-  const isFar = (r: number): boolean => localOf[r]! < 0 && weights.subarray(r * m, (r + 1) * m).every((x) => x === 0);
   const far = new Uint8Array(n);
-  for (let r = 0; r < n; r++) if (isFar(r)) far[r] = 1;
+  for (let r = 0; r < n; r++) {
+    if (localOf[r]! >= 0) continue;
+    let zero = true;
+    for (let j = 0; j < m && zero; j++) zero = weights[r * m + j] === 0;
+    if (zero) far[r] = 1;
+  }
   const back = new MinHeap(256);
   for (let r = 0; r < n; r++) {
     if (far[r] === 1 && kinds[r] === WAY_OUT) {
