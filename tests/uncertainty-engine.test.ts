@@ -12,12 +12,13 @@ import { estimatePonds, type EstimateParams } from '../src/pipeline/estimate.js'
 import { defaultParams } from '../src/pipeline/run.js';
 import { defaultWaterRunParams } from '../src/pipeline/water-stage.js';
 import { combinePonds } from '../src/ponds/combine.js';
+import { DEFAULT_POND_PARAMS } from '../src/ponds/params.js';
 import { percentileStandardError } from '../src/uncertainty/bands.js';
 import { combineCascade, createCascadeScratch } from '../src/uncertainty/cascade.js';
 import { DAM_BAND_FIGURES } from '../src/uncertainty/engine.js';
 import { defaultUncertaintyParams, zeroVarianceParams, type UncertaintyParams } from '../src/uncertainty/params.js';
 import { createRng } from '../src/uncertainty/random.js';
-import { makeDam, referenceChannelCol, referenceDams, referenceValley, REFERENCE_VALLEY, vValley } from './helpers/synthetic.js';
+import { makeDam, referenceChannelCol, referenceDams, referenceValley, REFERENCE_VALLEY, sampleGrid, vValley } from './helpers/synthetic.js';
 import { colToX, rowToY } from '../src/grid/transform.js';
 import { memoryDem } from './helpers/memory-dem.js';
 
@@ -236,5 +237,25 @@ describe('candidates and recall', () => {
     }
     // Negative binomial with n = 1, R = 0.5: mean 1, variance n(1 − R)/R² = 2.
     expect(Math.abs(missed / N - 1)).toBeLessThan(4 * Math.sqrt(2 / N));
+  });
+});
+
+describe('a dam near the height at which it counts as visible in the DEM', () => {
+  // A mound across a 1 % valley (the DEM-visible dam of tests/ponds-crest.test.ts); the rule counts it from 0.3 m (DEFAULT_POND_PARAMS).
+  const frame = { width: 61, height: 120, cellM: 0.5, damRow: 100 };
+  const mound = (heightM: number): Grid => sampleGrid(frame, (x, y) => 0.01 * y + Math.abs(x) / 10 + (Math.abs(y) <= 0.5 ? heightM : 0));
+  const dam = makeDam({ id: 'v', lines: [[[-14, 0], [14, 0]]], heightM: 1 });
+  const codes = async (heightM: number, demError: boolean): Promise<string[]> => {
+    const p = runParams({ demError, demRmseM: 0.1, demRmseFrom: 'option', draws: 10 });
+    return (await estimatePonds(memoryDem(mound(heightM)), [dam], p)).warnings.map((w) => w.code);
+  };
+  it('is flagged when the DEM error is drawn and it stands within 2·√2·σ of that height, either side', async () => {
+    expect(DEFAULT_POND_PARAMS.demVisibleMinM).toBe(0.3);
+    // 0.4 m (visible, 0.1 m above) and 0.25 m (not visible, 0.05 m below), with σ = 0.1 m: 2·√2·σ = 0.28 m.
+    expect(await codes(0.4, true)).toContain('visibility-near-threshold');
+    expect(await codes(0.25, true)).toContain('visibility-near-threshold');
+    // Not without the DEM error, nor 0.4 m clear of the threshold.
+    expect(await codes(0.4, false)).not.toContain('visibility-near-threshold');
+    expect(await codes(0.7, true)).not.toContain('visibility-near-threshold');
   });
 });

@@ -196,6 +196,8 @@ function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, 
   const drawTopM = prep ? prep.floodTopM(dam, setup) : -Infinity;
   const kept = done.fill.escapeKind === null && drawTopM > done.fill.topLevelM ? fillBehindCrest(grid, setup, { reachBox, maxLevelM: drawTopM }, scratch) : done.fill;
   for (const wn of setup.warnings) note(result, warnings, wn);
+  const marginal = visibilityNearThreshold(dam.id, setup, params);
+  if (marginal) note(result, warnings, marginal);
   w.setup = setup;
   w.fill = kept;
   const stats = pondStats(grid, kept);
@@ -218,6 +220,28 @@ function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, 
   if (kept.limitedBy !== 'crest' && kept.limitedBy !== 'breach') {
     note(result, warnings, limitWarning(dam.id, kept));
   }
+}
+
+/**
+ * A warning when the DEM error is drawn and the dam stands within two
+ * standard deviations of an error difference (2·√2·σ) of the height at
+ * which pondage counts it as visible in the DEM: on the true ground the
+ * rule could go the other way and count the dam's height from the other
+ * place (toe or crest), which the draws do not follow.
+ */
+function visibilityNearThreshold(id: string, setup: CrestSetup, params: EstimateParams): Warning | null {
+  const u = params.uncertainty;
+  if (!u || !(u.draws > 0) || !u.demError || !(u.demRmseM > 0) || !setup.holdsWater) return null;
+  const margin = setup.visibilityMarginM;
+  if (!(Math.abs(margin) < 2 * Math.SQRT2 * u.demRmseM)) return null;
+  const stands = (margin + params.pond.demVisibleMinM).toFixed(2);
+  const rule = params.pond.demVisibleMinM.toFixed(2);
+  const now = setup.demVisible ? 'from its downstream toe' : 'from the crest\'s lowest DEM point';
+  return {
+    code: 'visibility-near-threshold',
+    damId: id,
+    message: `dam ${id}: it stands ${stands} m above its surroundings in the DEM, near the ${rule} m at which it counts as visible there; its crest level is counted ${now}, and with the DEM's error (RMSE ${u.demRmseM} m) the rule could go the other way, which the bands do not include`,
+  };
 }
 
 /** A dam's own search box in the cells of its group's window (undefined without a box). */

@@ -64,6 +64,8 @@ export interface CrestSetup {
   holdsWater: boolean;
   /** True when the dam stands out in the DEM (rule 4). */
   demVisible: boolean;
+  /** min(crest's lowest DEM point − downstream toe, ridge height) − the rule's threshold, m (≥ 0: visible; NaN: no toe found). */
+  visibilityMarginM: number;
   /** Non-crest cells next to the bed cell on the upstream side: the flood starts there. */
   seedCells: Int32Array;
   upstreamSide: 'left' | 'right';
@@ -164,10 +166,11 @@ export function setupCrest(
   const probeDownM = upCode === LEFT ? probe.rightM : probe.leftM;
 
   // Rule 4: DEM-visible dam.
-  const demVisible =
-    !Number.isNaN(probeDownM) &&
-    crestLowM - probeDownM >= params.demVisibleMinM &&
-    ridgeHeightM(grid, segs, crestCells, crestLowM, -upCode, params.probeM) >= params.demVisibleMinM;
+  // How far the dam stands above (or short of) that rule's threshold: the smaller of its rise over the toe and its ridge.
+  const visibilityMarginM = Number.isNaN(probeDownM)
+    ? NaN
+    : Math.min(crestLowM - probeDownM, ridgeHeightM(grid, segs, crestCells, crestLowM, -upCode, params.probeM)) - params.demVisibleMinM;
+  const demVisible = visibilityMarginM >= 0;
   const bedElevM = demVisible ? probeDownM : crestLowM;
 
   // Rules 5–7: crest elevation.
@@ -231,6 +234,7 @@ export function setupCrest(
     heightSource,
     holdsWater,
     demVisible,
+    visibilityMarginM,
     seedCells,
     upstreamSide,
     upstreamSource,
