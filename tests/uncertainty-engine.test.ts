@@ -249,13 +249,15 @@ describe('a dam near the height at which it counts as visible in the DEM', () =>
     const p = runParams({ demError, demRmseM: 0.1, demRmseFrom: 'option', draws: 10 });
     return (await estimatePonds(memoryDem(mound(heightM)), [dam], p)).warnings.map((w) => w.code);
   };
-  it('is flagged when the DEM error is drawn and it stands within 2·√2·σ of that height, either side', async () => {
+  it('is flagged when the DEM error is drawn and it stands within two sd of the crest–toe error difference of that height, either side', async () => {
     expect(DEFAULT_POND_PARAMS.demVisibleMinM).toBe(0.3);
-    // 0.4 m (visible, 0.1 m above) and 0.25 m (not visible, 0.05 m below), with σ = 0.1 m: 2·√2·σ = 0.28 m.
-    expect(await codes(0.4, true)).toContain('visibility-near-threshold');
-    expect(await codes(0.25, true)).toContain('visibility-near-threshold');
-    // Not without the DEM error, nor 0.4 m clear of the threshold.
-    expect(await codes(0.4, false)).not.toContain('visibility-near-threshold');
-    expect(await codes(0.7, true)).not.toContain('visibility-near-threshold');
+    // Crest and toe lie the 3 m probe apart: sd = √(2·γ(3 m)) = 0.042 m for σ = 0.1 m and the default 50 m range (spherical model).
+    expect(DEFAULT_POND_PARAMS.probeM).toBe(3);
+    // 0.35 m (visible, 0.05 m above) and 0.27 m (not visible, 0.03 m below).
+    expect(await codes(0.35, true)).toContain('visibility-near-threshold');
+    expect(await codes(0.27, true)).toContain('visibility-near-threshold');
+    // Not without the DEM error, nor 0.15 m clear of the threshold.
+    expect(await codes(0.35, false)).not.toContain('visibility-near-threshold');
+    expect(await codes(0.45, true)).not.toContain('visibility-near-threshold');
   });
 });

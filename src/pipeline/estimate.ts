@@ -30,6 +30,7 @@ import { clipBox, groupBoxes, unionBox, type CellBox } from './windows.js';
 import { crestLocation } from './crest-location.js';
 import { ScenarioTally, type Scenarios } from './scenarios.js';
 import type { UncertaintyParams } from '../uncertainty/params.js';
+import { sphericalSemivariogram } from '../uncertainty/covariance.js';
 import { createDrawPrep, type DrawInputs, type DrawPrep } from '../uncertainty/prepare.js';
 import { WaterStage, effectiveWaterParams, type WaterRunParams, type WaterWindowSource } from './water-stage.js';
 import { PondWaterCollector, type PondWater } from './pond-water.js';
@@ -224,16 +225,19 @@ function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, 
 
 /**
  * A warning when the DEM error is drawn and the dam stands within two
- * standard deviations of an error difference (2·√2·σ) of the height at
- * which pondage counts it as visible in the DEM: on the true ground the
- * rule could go the other way and count the dam's height from the other
- * place (toe or crest), which the draws do not follow.
+ * standard deviations of the error difference between its crest and its
+ * toe of the height at which pondage counts it as visible in the DEM: on
+ * the true ground the rule could go the other way and count the dam's
+ * height from the other place (toe or crest), which the draws do not
+ * follow. The two lie about the probe's length apart, so the difference's
+ * standard deviation is √(2·γ(probe)) under the spherical error model.
  */
 function visibilityNearThreshold(id: string, setup: CrestSetup, params: EstimateParams): Warning | null {
   const u = params.uncertainty;
   if (!u || !(u.draws > 0) || !u.demError || !(u.demRmseM > 0) || !setup.holdsWater) return null;
   const margin = setup.visibilityMarginM;
-  if (!(Math.abs(margin) < 2 * Math.SQRT2 * u.demRmseM)) return null;
+  const sdM = Math.sqrt(2 * sphericalSemivariogram(params.pond.probeM, u.demRmseM * u.demRmseM, u.demErrorRangeM));
+  if (!(Math.abs(margin) < 2 * sdM)) return null;
   const stands = (margin + params.pond.demVisibleMinM).toFixed(2);
   const rule = params.pond.demVisibleMinM.toFixed(2);
   const now = setup.demVisible ? 'from its downstream toe' : 'from the crest\'s lowest DEM point';
