@@ -15,7 +15,7 @@
  * downstream pond's backwater reaches into the upstream one).
  */
 import type { Grid } from '../grid/grid.js';
-import { indexOfSorted } from '../grid/sorted-search.js';
+import { float32OrderKey, indexOfSorted, radixArgsort } from '../grid/sorted-search.js';
 import type { DamInput } from '../inventory.js';
 import type { CrestSetup, HeightSource } from '../ponds/crest.js';
 import { fillBehindCrest, type FillScratch, type PondFill, type ReachBox } from '../ponds/fill.js';
@@ -386,7 +386,9 @@ function buildCluster(grid: Grid, group: GroupMember[], dams: (DamDrawInput | nu
       byGround[k] = k;
       if (c >= 0) perCell[c + 1]!++;
     }
-    byGround.sort((x, y) => zAt[x]! - zAt[y]! || x - y);
+    const groundKey = new Uint32Array(order.length);
+    for (let k = 0; k < order.length; k++) groundKey[k] = float32OrderKey(zAt[k]!);
+    byGround.set(radixArgsort(order.length, [groundKey]));
     const input = dams[m.index]!;
     input.cluster = clusterIndex;
     input.shares = { sharedIndex, zM: zAt, byGround };
@@ -453,6 +455,25 @@ function buildCluster(grid: Grid, group: GroupMember[], dams: (DamDrawInput | nu
   return { members: group.map((m) => m.index), zM, areaM2, reach, cellStart: perCell, cellMember: evMember, cellJoin: evJoin, pairs };
 }
 
+/** Sorts entry positions `idx` by join level, ties by cell (join levels are ground elevations, float32 values). */
+function sortByJoinThenCell(idx: Uint32Array, join: Float64Array, cell: Int32Array): void {
+  const n = idx.length;
+  const joinKey = new Uint32Array(n);
+  const cellKey = new Uint32Array(n);
+  for (let k = 0; k < n; k++) {
+    const j = join[idx[k]!]!;
+    if (Math.fround(j) !== j) {
+      idx.sort((x, y) => join[x]! - join[y]! || cell[x]! - cell[y]!);
+      return;
+    }
+    joinKey[k] = float32OrderKey(j);
+    cellKey[k] = cell[idx[k]!]! >>> 0;
+  }
+  const perm = radixArgsort(n, [joinKey, cellKey]);
+  const sorted = Uint32Array.from(perm, (p) => idx[p]!);
+  idx.set(sorted);
+}
+
 /** Common cells (those a third member reaches when `multi`, else the others) sorted by `join` ascending (ties by cell), with running figures. */
 function sortedList(
   join: Float64Array,
@@ -466,7 +487,7 @@ function sortedList(
   const idx = new Uint32Array(n);
   n = 0;
   for (let k = 0; k < cell.length; k++) if (shared.reach[cell[k]!] !== 2 === multi) idx[n++] = k;
-  idx.sort((x, y) => join[x]! - join[y]! || cell[x]! - cell[y]!);
+  sortByJoinThenCell(idx, join, cell);
   const out: PairList = {
     join: new Float64Array(n),
     other: new Float64Array(n),
