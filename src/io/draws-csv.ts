@@ -28,7 +28,7 @@
  *   row equals the sum of its dam rows in file order exactly (plus
  *   `missing_storage_m3` / `missing_area_m2` when --recall is on).
  */
-import { writeFile } from 'node:fs/promises';
+import { open } from 'node:fs/promises';
 import { csvField } from './csv-write.js';
 import type { ScenarioSeries } from '../uncertainty/scenario-draws.js';
 
@@ -56,6 +56,13 @@ export interface DrawsTable {
 
 /** The file's text. */
 export function drawsCsv(t: DrawsTable): string {
+  let text = '';
+  for (const chunk of drawsCsvChunks(t)) text += chunk;
+  return text;
+}
+
+/** The file's text in pieces of a few thousand lines (the header first), so a large file is never one string. */
+export function* drawsCsvChunks(t: DrawsTable): Generator<string> {
   const totalNames = Object.keys(t.totals);
   const inf = t.influence;
   const header = ['draw', 'scope', 'id', ...totalNames.slice(0, 3), 'volume_m3', 'area_m2', ...totalNames.slice(3), ...(inf ? ['influence_area_m2'] : [])];
@@ -63,7 +70,8 @@ export function drawsCsv(t: DrawsTable): string {
   const ids = t.damIds.map((id) => csvField(id));
   const emptyTotals = ','.repeat(3);
   const emptyTail = ','.repeat(totalNames.length - 3);
-  const lines: string[] = [header.join(',')];
+  yield header.join(',') + '\n';
+  let lines: string[] = [];
   const N = t.draws;
   for (let k = 0; k < N; k++) {
     const head = totalNames.slice(0, 3).map((n) => String(t.totals[n]![k]!));
@@ -86,11 +94,22 @@ export function drawsCsv(t: DrawsTable): string {
     for (const d of rows) {
       lines.push(`${k},dam,${ids[d]!}${emptyTotals},${String(t.damVolumeM3[d * N + k]!)},${String(t.damAreaM2[d * N + k]!)}${emptyTail}${inf ? ',' + String(inf.dams[d * N + k]!) : ''}`);
     }
+    if (lines.length >= CHUNK_LINES || k === N - 1) {
+      yield lines.join('\n') + '\n';
+      lines = [];
+    }
   }
-  return lines.join('\n') + '\n';
 }
+
+/** Lines per piece of drawsCsvChunks (at least; a draw's rows stay together). */
+const CHUNK_LINES = 8192;
 
 /** Writes draws.csv at `path`. */
 export async function writeDrawsCsv(path: string, t: DrawsTable): Promise<void> {
-  await writeFile(path, drawsCsv(t));
+  const file = await open(path, 'w');
+  try {
+    for (const chunk of drawsCsvChunks(t)) await file.write(chunk);
+  } finally {
+    await file.close();
+  }
 }
