@@ -66,16 +66,21 @@ export interface EscapeRim {
   kind: Uint8Array;
   /** Window cell → rim row (−1: wall or deep water). */
   row: Int32Array;
-  /** Per rim row: DEM elevation (m) and flat index in the grid the rim was built on. */
-  zM: Float64Array;
+  /** Per rim row: DEM elevation (m, the DEM's float32 value) and flat index in the grid the rim was built on. */
+  zM: Float32Array;
   gridCells: Int32Array;
   /** Flat offsets of a window cell's 8 neighbours. */
   offsets: Int32Array;
   /** Window cells the flood starts from (the deep water's edge, or the seeds). */
   start: Int32Array;
-  /** Jointly drawn errors per dam (supportSize), the kriging weights of each rim row on them (rows × m), and the largest Σ|weights| of a row. */
+  /**
+   * Jointly drawn errors per dam (supportSize); the kriging weights on them
+   * of the rows within the error's range of the support (m per row, from
+   * weightAt[row]; −1: all zero), and the largest Σ|weights| of a row.
+   */
   m: number;
   weights: Float64Array;
+  weightAt: Int32Array;
   weightReach: number;
   /** Rim rows with their own variation (ascending), each row's place among them (−1: none), and the lower Cholesky factor of its covariance given the joint errors. */
   localRows: Int32Array;
@@ -94,7 +99,7 @@ export interface EscapeRim {
   deepAreaZ: number;
   pondAreaM2: number;
   /** Per rim row: sd of its error not carried by the kriged and local draws, m (0 near the passes). */
-  residualSdM: Float64Array;
+  residualSdM: Float32Array;
   /** Rim rows on the pond's side of its ways out (cells the fill with the passes closed reaches), open ground, by ground elevation (m); their largest residual sd, m. */
   pondSideRows: Int32Array;
   pondSideZM: Float64Array;
@@ -105,7 +110,7 @@ export interface EscapeRim {
    * cells alone; Infinity elsewhere. A draw's flood leaves at a cell whose
    * level is already that high: what lies beyond is the same in every draw.
    */
-  farExitM: Float64Array;
+  farExitM: Float32Array;
 }
 
 /** Reusable buffers for flooding one rim. */
@@ -260,7 +265,7 @@ export function buildEscapeRim(args: {
   const kind = new Uint8Array(ww * wh);
   const rowOf = new Int32Array(ww * wh).fill(-1);
   const n = cells.length;
-  const zM = new Float64Array(n);
+  const zM = new Float32Array(n);
   const gridCells = Int32Array.from(cells);
   const areaM2 = new Float64Array(n);
   const inPond = new Uint8Array(n);
@@ -293,8 +298,9 @@ export function buildEscapeRim(args: {
   const sill = sigmaM * sigmaM;
   const cvv = supportCovarianceBlock(support, support, sill, rangeM, true);
   const lvv = cholesky(cvv, m).lower;
+  // Dense while building (freed after), packed to the rows within range below.
   const weights = new Float64Array(n * m);
-  const residualSdM = new Float64Array(n);
+  const residualSdM = new Float32Array(n);
   const cxv = new Float64Array(m);
   const colOf = (r: number): number => (cells[r]! % width) + grid.colOffset;
   const rowOfCell = (r: number): number => Math.floor(cells[r]! / width) + grid.rowOffset;
@@ -369,7 +375,7 @@ export function buildEscapeRim(args: {
 
   // Cells out of reach of every drawn error (all kriging weights zero, no variation of their own) keep the DEM's
   // ground in a draw: from each, the lowest way out through such cells alone (a flood back from the ways out).
-  const farExitM = new Float64Array(n).fill(Infinity);
+  const farExitM = new Float32Array(n).fill(Infinity);
   const far = new Uint8Array(n);
   for (let r = 0; r < n; r++) {
     if (localOf[r]! >= 0) continue;
@@ -401,6 +407,16 @@ export function buildEscapeRim(args: {
     }
   }
 
+  const weightAt = new Int32Array(n).fill(-1);
+  let packedRows = 0;
+  for (let r = 0; r < n; r++) {
+    let zero = true;
+    for (let j = 0; j < m && zero; j++) zero = weights[r * m + j] === 0;
+    if (!zero) weightAt[r] = m * packedRows++;
+  }
+  const packed = new Float64Array(packedRows * m);
+  for (let r = 0; r < n; r++) if (weightAt[r]! >= 0) packed.set(weights.subarray(r * m, (r + 1) * m), weightAt[r]!);
+
   const rim: EscapeRim = {
     width: ww,
     height: wh,
@@ -411,7 +427,8 @@ export function buildEscapeRim(args: {
     gridCells,
     start: Int32Array.from(start),
     m,
-    weights,
+    weights: packed,
+    weightAt,
     weightReach,
     localRows,
     localOf,
@@ -482,8 +499,9 @@ export function errorAt(rim: EscapeRim, work: RimWork, r: number): number {
   if (work.given || work.known[r] === work.drawStamp) return work.errorM[r]!;
   const m = rim.m;
   const w = rim.weights;
+  const o = rim.weightAt[r]!;
   let e = 0;
-  for (let j = 0; j < m; j++) e += w[r * m + j]! * work.joint[j]!;
+  if (o >= 0) for (let j = 0; j < m; j++) e += w[o + j]! * work.joint[j]!;
   const a = rim.localOf[r]!;
   if (a >= 0) e += work.localM[a]!;
   work.errorM[r] = e;
