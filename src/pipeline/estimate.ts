@@ -228,8 +228,9 @@ function floodOne(grid: Grid, w: Working, box: CellBox, params: EstimateParams, 
  * standard deviations of the error difference between its crest and its
  * toe of the height at which pondage counts it as visible in the DEM: on
  * the true ground the rule could go the other way and count the dam's
- * height from the other place (toe or crest), which the draws do not
- * follow. The two lie about the probe's length apart, so the difference's
+ * height from the other place (toe or crest). The draws take the rule
+ * again for measured dams (uncertainty/prepare.ts VisibilityFlip), not
+ * for the others. The two lie about the probe's length apart, so the difference's
  * standard deviation is √(2·γ(probe)) under the spherical error model.
  */
 function visibilityNearThreshold(id: string, setup: CrestSetup, params: EstimateParams): Warning | null {
@@ -241,10 +242,15 @@ function visibilityNearThreshold(id: string, setup: CrestSetup, params: Estimate
   const stands = (margin + params.pond.demVisibleMinM).toFixed(2);
   const rule = params.pond.demVisibleMinM.toFixed(2);
   const now = setup.demVisible ? 'from its downstream toe' : 'from the crest\'s lowest DEM point';
+  // Measured dams have the rule drawn again (uncertainty/prepare.ts VisibilityFlip); the others keep the DEM's choice.
+  const bands =
+    setup.heightSource === 'measured' && setup.toeCell >= 0
+      ? 'the bands take the rule again in each draw, from the error difference of those two cells alone'
+      : 'which the bands do not include';
   return {
     code: 'visibility-near-threshold',
     damId: id,
-    message: `dam ${id}: it stands ${stands} m above its surroundings in the DEM, near the ${rule} m at which it counts as visible there; its crest level is counted ${now}, and with the DEM's error (RMSE ${u.demRmseM} m) the rule could go the other way, which the bands do not include`,
+    message: `dam ${id}: it stands ${stands} m above its surroundings in the DEM, near the ${rule} m at which it counts as visible there; its crest level is counted ${now}, and with the DEM's error (RMSE ${u.demRmseM} m) the rule could go the other way; ${bands}`,
   };
 }
 

@@ -66,6 +66,8 @@ export interface CrestSetup {
   demVisible: boolean;
   /** min(crest's lowest DEM point − downstream toe, ridge height) − the rule's threshold, m (≥ 0: visible; NaN: no toe found). */
   visibilityMarginM: number;
+  /** The downstream toe (flat index): the lowest cell within the probe downstream, or −1. */
+  toeCell: number;
   /** Non-crest cells next to the bed cell on the upstream side: the flood starts there. */
   seedCells: Int32Array;
   upstreamSide: 'left' | 'right';
@@ -171,6 +173,14 @@ export function setupCrest(
     ? NaN
     : Math.min(crestLowM - probeDownM, ridgeHeightM(grid, segs, crestCells, crestLowM, -upCode, params.probeM)) - params.demVisibleMinM;
   const demVisible = visibilityMarginM >= 0;
+  // The downstream toe: the lowest probed cell downstream (−1: none).
+  let toeCell = -1;
+  if (!Number.isNaN(probeDownM)) {
+    for (const i of probe.cells[upCode === LEFT ? 1 : 0]) if (z[i]! === probeDownM) {
+      toeCell = i;
+      break;
+    }
+  }
   const bedElevM = demVisible ? probeDownM : crestLowM;
 
   // Rules 5–7: crest elevation.
@@ -235,6 +245,7 @@ export function setupCrest(
     holdsWater,
     demVisible,
     visibilityMarginM,
+    toeCell,
     seedCells,
     upstreamSide,
     upstreamSource,

@@ -31,7 +31,8 @@ import { combineCascade, createCascadeDraw, createCascadeScratch, type CascadeDr
 import { bandOf, percentileStandardError, tooFewDraws, type Bands } from './bands.js';
 import { HERMITE_5, drawDemErrors, drawnLevelM } from './dem-error.js';
 import { createRimWork, drawRimErrors, rimPondVolumeM3 } from './escape-rim.js';
-import type { DrawInputs, DamDrawInput, OverlapCluster } from './prepare.js';
+import { supportSize } from './covariance.js';
+import { flippedCrest, type DrawInputs, type DamDrawInput, type OverlapCluster } from './prepare.js';
 import type { UncertaintyParams } from './params.js';
 import { drawMissing } from './recall.js';
 import { createRng, deriveSeed, normal, type Rng } from './random.js';
@@ -152,11 +153,11 @@ export function runDraws(args: {
     seed,
     sigmaM: u.demError ? u.demRmseM : 0,
     rangeM: u.demErrorRangeM,
-    keepJoint: inputs.dams.map((inp) => Boolean(inp?.rim)),
+    keepJoint: inputs.dams.map((inp) => Boolean(inp?.rim) || Boolean(inp?.flip)),
   });
   // A dam whose rim is kept has the error's variation within its pond in its drawn volume already (escape-rim.ts).
   dem.jointM.forEach((joint, d) => {
-    if (joint) dem.withinSdM[d] = 0;
+    if (joint && inputs.dams[d]?.rim) dem.withinSdM[d] = 0;
   });
 
   // Heights, levels and inclusion.
@@ -178,16 +179,24 @@ export function runDraws(args: {
     const joint = dem.jointM[d] ?? null;
     const rimWork = rim && joint ? createRimWork(rim) : null;
     const rimRng = rimWork ? createRng(deriveSeed(seed, 'dem-error-rim', det.id)) : null;
+    const jointSize = joint && inp.support ? supportSize(inp.support) : 0;
     for (let k = 0; k < N; k++) {
-      const crest = inp.crestElevM + (heights[base + k]! - inp.heightM);
+      let crest = inp.crestElevM + (heights[base + k]! - inp.heightM);
+      let refErr = dem.refErrorM[base + k]!;
+      // Near the DEM-visibility threshold the rule may go the other way on the true ground: crest from the other cell.
+      const flipped = inp.flip && joint ? flippedCrest(inp.flip, joint, k * jointSize) : null;
+      if (flipped) {
+        crest += flipped.shiftM;
+        refErr = flipped.refErrorM;
+      }
       let level: number;
       if (rim && joint && rimWork && rimRng) {
         // The pond on the rim's true ground, as the level at which the DEM's fill holds as much (no smearing: it is in the volume).
         for (let a = 0; a < rimWork.normals.length; a++) rimWork.normals[a] = normal(rimRng);
         drawRimErrors(rim, joint, k * rim.m, rimWork);
-        level = levelForVolumeM(inp.fill, rimPondVolumeM3(rim, crest, dem.refErrorM[base + k]!, dem.meanErrorM[base + k]!, rimWork));
+        level = levelForVolumeM(inp.fill, rimPondVolumeM3(rim, crest, refErr, dem.meanErrorM[base + k]!, rimWork));
       } else {
-        level = drawnLevelM(crest, escapeM, dem.refErrorM[base + k]!, dem.meanErrorM[base + k]!, dem.passErrorM[base + k]!);
+        level = drawnLevelM(crest, escapeM, refErr, dem.meanErrorM[base + k]!, dem.passErrorM[base + k]!);
       }
       levels[base + k] = level < floor ? floor : level;
     }

@@ -328,7 +328,7 @@ export function buildEscapeRim(args: {
     weightReach = Math.max(weightReach, reach);
   }
   const passes: [number, number][] = [];
-  for (let j = 0; j < support.pointCol.length; j++) passes.push([support.pointCol[j]!, support.pointRow[j]!]);
+  for (let j = 0; j < support.pointCol.length; j++) if (Number.isFinite(support.passDeltaM[j]!)) passes.push([support.pointCol[j]!, support.pointRow[j]!]);
   const near: { r: number; d: number }[] = [];
   for (let r = 0; r < n; r++) {
     let d = Infinity;

@@ -51,6 +51,8 @@ export interface DamDrawInput {
   support: ErrorSupport | null;
   /** For a pond escaping below its crest with the DEM error on: the ground round its ways out, flooded again in every draw (escape-rim.ts); null when it could not be kept, absent otherwise. */
   rim?: EscapeRim | null;
+  /** For a measured dam near the height at which it counts as visible in the DEM: what the rule going the other way does (see VisibilityFlip). */
+  flip?: VisibilityFlip;
   /** Lowest ground elevation among fill.order[0..k], m. */
   prefixMinZ: Float32Array;
   /** Index into DrawInputs.clusters, or -1 when the pond overlaps no other in any draw. */
@@ -162,13 +164,16 @@ export function createDrawPrep(u: UncertaintyParams, pond: PondParams, damCount:
       if (u.heightError && setup.heightSource === 'default') {
         heightUpM = Math.max(0, Math.min(pond.maxHeightM, setup.heightM * Math.pow(u.unmeasuredHeightGsd, z)) - setup.heightM);
       }
-      return setup.crestElevM + heightUpM + z * Math.sqrt(heightSd * heightSd + demSd * demSd);
+      // A DEM-visible dam whose visibility the error can take away: its crest may stand at the crest's lowest point + height.
+      const flip = demOn ? visibilityFlipOf(setup, u, pond) : null;
+      const flipUpM = flip && flip.visible ? flip.deltaM : 0;
+      return setup.crestElevM + flipUpM + heightUpM + z * Math.sqrt(heightSd * heightSd + demSd * demSd);
     },
     addGroup(grid, members, scratch) {
       const eligible: GroupMember[] = [];
       for (const m of members) {
         if (!m.fill || !m.setup) continue;
-        const input = damInput(grid, m, u, demOn, this.floodTopM(m.dam, m.setup), scratch);
+        const input = damInput(grid, m, u, pond, demOn, this.floodTopM(m.dam, m.setup), scratch);
         dams[m.index] = input;
         if (input.fill.order.length > 0 && mayCount(m, u)) eligible.push(m);
       }
@@ -205,7 +210,7 @@ function mayCount(m: GroupMember, u: UncertaintyParams): boolean {
   return m.inTotals;
 }
 
-function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boolean, floodTopM: number, scratch: FillScratch | undefined): DamDrawInput {
+function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, pond: PondParams, demOn: boolean, floodTopM: number, scratch: FillScratch | undefined): DamDrawInput {
   const setup = m.setup!;
   const escapeLevelM = m.fill!.escapeKind !== null ? m.fill!.escapeLevelM : Infinity;
   // With the DEM error on, a pond whose water escapes below its crest gets its next ways out and a fill with
@@ -225,12 +230,22 @@ function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boole
   }
   let support: ErrorSupport | null = null;
   let rim: EscapeRim | null | undefined;
+  let flip: VisibilityFlip | undefined;
   if (demOn && setup.holdsWater) {
     // The deterministic pond's cells (the fill with ways out closed starts with the same cells).
     let count = floodedCount(fill, m.fill!.waterLevelM);
     if (count === 0) count = n;
     const refRow = Math.floor(setup.levelRefCell / grid.width);
     const alts = referenceAlternatives(grid, setup, u.demRmseM, u.demErrorRangeM);
+    let passCells = routes?.passCells ?? (fill.escapeKind !== null ? Int32Array.of(fill.escapePassCell) : new Int32Array(0));
+    let passDeltaM = routes?.passDeltaM ?? (fill.escapeKind !== null ? Float64Array.of(0) : new Float64Array(0));
+    const found = visibilityFlipOf(setup, u, pond);
+    if (found) {
+      // The other cell the crest could be measured from, drawn with the passes (never a way out: Δ = ∞).
+      flip = { ...found, jointIndex: 2 + passCells.length };
+      passCells = Int32Array.from([...passCells, found.otherCell]);
+      passDeltaM = Float64Array.from([...passDeltaM, Infinity]);
+    }
     support = buildSupport({
       cells: fill.order.subarray(0, count),
       width: grid.width,
@@ -243,8 +258,8 @@ function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boole
       blockM: u.demErrorRangeM / 4,
       altCells: alts.cells,
       altDeltaM: alts.deltaM,
-      passCells: routes?.passCells ?? (fill.escapeKind !== null ? Int32Array.of(fill.escapePassCell) : undefined),
-      passDeltaM: routes?.passDeltaM ?? (fill.escapeKind !== null ? Float64Array.of(0) : undefined),
+      passCells,
+      passDeltaM,
     });
     if (routes) {
       rim = buildEscapeRim({ grid, setup, fill: m.fill!, closed: routes.fill, support, floodTopM, reachBox: m.reachBox, sigmaM: u.demRmseM, rangeM: u.demErrorRangeM, scratch });
@@ -262,6 +277,7 @@ function damInput(grid: Grid, m: GroupMember, u: UncertaintyParams, demOn: boole
     escapeLevelM,
     support,
     ...(rim !== undefined ? { rim } : {}),
+    ...(flip ? { flip } : {}),
     prefixMinZ,
     cluster: -1,
     shares: null,
@@ -519,6 +535,56 @@ function sortedList(
   return out;
 }
 
+
+/**
+ * A measured dam standing near the height at which pondage counts it as
+ * visible in the DEM (crest.ts rule 4; within VISIBILITY_FLIP_SDS standard
+ * deviations of the crest–toe error difference). Visible, its crest is the
+ * toe + height; not visible, the crest's lowest point + height, ΔM higher.
+ * On the true ground the rule is taken again on the margin moved by the
+ * error difference, margin − (e_crest − e_toe): where it goes the other
+ * way, the draw's crest moves by ±ΔM and is measured from the other cell.
+ */
+export interface VisibilityFlip {
+  /** Whether the DEM has the dam visible (crest from the toe). */
+  visible: boolean;
+  /** The visibility margin on the DEM (CrestSetup.visibilityMarginM), m. */
+  marginM: number;
+  /** Crest's lowest DEM point − toe, m: how much higher the crest stands measured from the crest. */
+  deltaM: number;
+  /** The cell the crest is not measured from on the DEM (the crest's lowest when visible, else the toe). */
+  otherCell: number;
+  /** Its error's place in the dam's jointly drawn errors ([e_ref, ē, points...]). */
+  jointIndex: number;
+}
+
+/** Standard deviations of the crest–toe error difference within which a dam's visibility is drawn. */
+export const VISIBILITY_FLIP_SDS = 4;
+
+/** The visibility flip of a measured dam, or null when it stands clear of the rule (or has no toe). */
+function visibilityFlipOf(setup: CrestSetup, u: UncertaintyParams, pond: PondParams): Omit<VisibilityFlip, 'jointIndex'> | null {
+  if (setup.heightSource !== 'measured' || !setup.holdsWater || setup.toeCell < 0 || !(u.demRmseM > 0)) return null;
+  const margin = setup.visibilityMarginM;
+  const sd = Math.sqrt(2 * sphericalSemivariogram(pond.probeM, u.demRmseM * u.demRmseM, u.demErrorRangeM));
+  if (!(Math.abs(margin) < VISIBILITY_FLIP_SDS * sd)) return null;
+  return { visible: setup.demVisible, marginM: margin, deltaM: setup.crestLowM - setup.probeDownM, otherCell: setup.demVisible ? setup.bedCell : setup.toeCell };
+}
+
+/**
+ * The crest of a draw for a dam with a visibility flip: the crest elevation
+ * shift (m) and the reference error (m) when the rule goes the other way on
+ * the true ground, or null when it does not. `joint[o ..]` are the dam's
+ * jointly drawn errors; the engine's frame (true ground z − e).
+ */
+export function flippedCrest(flip: VisibilityFlip, joint: ArrayLike<number>, o: number): { shiftM: number; refErrorM: number } | null {
+  const eRef = joint[o]!;
+  const eOther = joint[o + flip.jointIndex]!;
+  const eCrest = flip.visible ? eOther : eRef;
+  const eToe = flip.visible ? eRef : eOther;
+  const visible = flip.marginM - eCrest + eToe >= 0;
+  if (visible === flip.visible) return null;
+  return { shiftM: flip.visible ? flip.deltaM : -flip.deltaM, refErrorM: eOther };
+}
 
 /** Most alternatives to a dam's reference cell drawn with it. */
 export const MAX_REFERENCE_ALTERNATIVES = 8;
