@@ -3,7 +3,7 @@
  */
 
 /** First index of ascending `sorted` whose value is at least `value` (sorted.length when none). */
-export function lowerBound(sorted: ArrayLike<number>, value: number): number {
+export function lowerBound(sorted: Float64Array, value: number): number {
   let lo = 0;
   let hi = sorted.length;
   while (lo < hi) {
@@ -14,10 +14,20 @@ export function lowerBound(sorted: ArrayLike<number>, value: number): number {
   return lo;
 }
 
-/** Position of `value` in ascending `sorted`, or −1. */
-export function indexOfSorted(sorted: ArrayLike<number>, value: number): number {
-  const at = lowerBound(sorted, value);
-  return at < sorted.length && sorted[at] === value ? at : -1;
+/**
+ * Position of `value` in ascending `sorted` (cell indices), or −1. Its own
+ * loop, so that lowerBound, which the draws call on Float64Arrays in their
+ * hot loops, only ever sees one element type.
+ */
+export function indexOfSorted(sorted: Int32Array, value: number): number {
+  let lo = 0;
+  let hi = sorted.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (sorted[mid]! < value) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo < sorted.length && sorted[lo] === value ? lo : -1;
 }
 
 const F32 = new Float32Array(1);

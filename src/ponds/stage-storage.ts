@@ -7,6 +7,7 @@
  * from the fill's running totals: O(log n) per level, exact up to rounding.
  */
 import type { Grid } from '../grid/grid.js';
+import { lowerBound } from '../grid/sorted-search.js';
 import type { PondFill } from './fill.js';
 
 /** Pond size at one water level. */
@@ -21,15 +22,7 @@ export interface PondSize {
 
 /** Number of fill entries whose join level is below `levelM`. */
 export function floodedCount(fill: PondFill, levelM: number): number {
-  const join = fill.joinM;
-  let lo = 0;
-  let hi = join.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >>> 1;
-    if (join[mid]! < levelM) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo;
+  return lowerBound(fill.joinM, levelM);
 }
 
 /**

@@ -15,6 +15,7 @@
  */
 import type { DamDrawInput, OverlapCluster, PairList } from './prepare.js';
 import { floodedCount, pondAt } from '../ponds/stage-storage.js';
+import { lowerBound } from '../grid/sorted-search.js';
 
 /** Reusable per-cluster buffers. */
 export interface CascadeScratch {
@@ -147,8 +148,8 @@ export function combineCascade(cluster: OverlapCluster, inputs: (DamDrawInput | 
 
 /** Of a pair's two orderings, the one with the shorter prefix below its pond's level, that prefix's length, and the other pond's level. */
 function pickPrefix(byA: PairList, byB: PairList, ha: number, hb: number): { list: PairList; count: number; otherLevel: number } {
-  const na = countBelow(byA.join, ha);
-  const nb = countBelow(byB.join, hb);
+  const na = lowerBound(byA.join, ha);
+  const nb = lowerBound(byB.join, hb);
   return na <= nb ? { list: byA, count: na, otherLevel: hb } : { list: byB, count: nb, otherLevel: ha };
 }
 
@@ -217,14 +218,3 @@ function deepestKept(cluster: OverlapCluster, inp: DamDrawInput, p: number, coun
   return 0;
 }
 
-/** Number of entries of ascending `sorted` below `level`. */
-function countBelow(sorted: Float64Array, level: number): number {
-  let lo = 0;
-  let hi = sorted.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >>> 1;
-    if (sorted[mid]! < level) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo;
-}
