@@ -183,7 +183,7 @@ export function buildEscapeRim(args: {
   scratch: FillScratch | undefined;
 }): EscapeRim | null {
   const { grid, setup, fill, closed, support, floodTopM, reachBox, sigmaM, rangeM } = args;
-  const { width, height, z } = grid;
+  const { width, z } = grid;
   const escapeM = fill.escapeLevelM;
   if (!(sigmaM > 0) || fill.escapeKind === null || !Number.isFinite(escapeM)) return null;
   const marginM = RIM_MARGIN_SDS * Math.SQRT2 * sigmaM;
